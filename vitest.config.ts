@@ -1,0 +1,13 @@
+import { defineConfig } from 'vitest/config';
+
+export default defineConfig({
+  test: {
+    include: ['test/**/*.test.ts'],
+    exclude: ['test/browser/**', 'node_modules/**'],
+    testTimeout: 60_000,
+    hookTimeout: 120_000,
+    pool: 'forks',
+    // 2-core machine; database tests each start their own schema or PGlite instance.
+    maxWorkers: 2,
+  },
+});
