@@ -1,0 +1,345 @@
+// The import pipeline: archive the document, parse, validate, plan, then write everything in one
+// transaction (or nothing). The archived document and its per-row outcome are kept whatever happens.
+import { sql } from 'drizzle-orm';
+import type { Db, Executor } from '../db/connection.ts';
+import { rowsOf } from '../db/connection.ts';
+import { applyPlan, planStore, type ApplyResult, type CertificatePlanItem, type StorePlan } from '../db/certificateStore.ts';
+import {
+  certificateSchema,
+  problemsFromZod,
+  testRecordSchema,
+  type CertificateInput,
+  type TestRecordInput,
+  type ValidationProblem,
+} from './certificateSchema.ts';
+import { prepareCertificate, prepareTestRecord, sha256, type FieldDifference } from './prepare.ts';
+import type { MillLayout } from './millLayout.ts';
+
+export type ImportFormat = 'json' | 'csv' | 'xlsx';
+
+export interface ImportOptions {
+  /** Validate and plan only; write nothing but the archive. */
+  dryRun?: boolean;
+  /** Write the valid items and report the rest (default: any problem rejects the whole document). */
+  acceptValid?: boolean;
+  /** Create unknown mills and grades. */
+  createMissing?: boolean;
+  /** Store changed certificates as new revisions instead of refusing them. */
+  revise?: boolean;
+}
+
+export interface ImportRequest {
+  bytes: Uint8Array;
+  format: ImportFormat;
+  filename?: string;
+  layout?: MillLayout;
+  options?: ImportOptions;
+  createdBy?: string;
+  today?: () => string;
+  onProgress?: (stage: 'parse' | 'store', done: number, total: number) => void;
+  /** Runs inside the data transaction after the rows are written (alert rules). */
+  afterWrite?: (tx: Executor, written: ApplyResult) => Promise<void>;
+}
+
+export type ItemStatus = 'created' | 'unchanged' | 'revised' | 'added' | 'conflict' | 'invalid' | 'rejected' | 'not_written';
+
+export interface ItemOutcome {
+  key: string;
+  kind: 'certificate' | 'test';
+  rows?: number[];
+  status: ItemStatus;
+  heatId?: number;
+  revision?: number;
+  problems: ValidationProblem[];
+  differences?: FieldDifference[];
+}
+
+export type ImportStatus = 'accepted' | 'partially_accepted' | 'rejected' | 'validated' | 'duplicate';
+
+export interface ImportReport {
+  importId: number;
+  status: ImportStatus;
+  /** The earlier import of the same bytes, when status is duplicate. */
+  duplicateOf?: number;
+  summary: {
+    items: number;
+    valid: number;
+    invalid: number;
+    created: number;
+    unchanged: number;
+    revised: number;
+    conflicts: number;
+    testsAdded: number;
+    readingsAdded: number;
+  };
+  problems: ValidationProblem[];
+  items: ItemOutcome[];
+}
+
+interface ParsedDocument {
+  certificates: Array<{ key: string; rows?: number[]; value?: CertificateInput; problems: ValidationProblem[] }>;
+  tests: Array<{ key: string; rows?: number[]; value?: TestRecordInput; problems: ValidationProblem[] }>;
+  fileProblems: ValidationProblem[];
+}
+
+/** Rows per INSERT batch inside the one transaction: bounds statement size and gives progress. */
+const STORE_CHUNK = 5000;
+
+export class ImportError extends Error {
+  constructor(
+    message: string,
+    readonly code: string,
+  ) {
+    super(message);
+  }
+}
+
+export async function runImport(db: Db, request: ImportRequest): Promise<ImportReport> {
+  const options = request.options ?? {};
+  const digest = sha256(request.bytes);
+  const [archived] = rowsOf<{ id: number }>(
+    await db.execute(sql`
+      insert into imports (filename, format, sha256, size_bytes, content, mill_layout, options, created_by)
+      values (${request.filename ?? null}, ${request.format}, ${digest}, ${request.bytes.byteLength},
+        ${sql.param(Buffer.from(request.bytes))}, ${request.layout ? JSON.stringify(request.layout) : null}::jsonb,
+        ${JSON.stringify(options)}::jsonb, ${request.createdBy ?? null})
+      returning id`),
+  );
+  const importId = archived.id;
+
+  const [earlier] = rowsOf<{ id: number }>(
+    await db.execute(sql`
+      select id from imports where sha256 = ${digest} and id <> ${importId}
+        and status in ('accepted', 'partially_accepted') order by id limit 1`),
+  );
+  if (earlier) {
+    const report = emptyReport(importId, 'duplicate');
+    report.duplicateOf = earlier.id;
+    report.problems.push({ path: '', message: `this document was already imported (import ${earlier.id}); nothing was written` });
+    await finish(db, report);
+    return report;
+  }
+
+  let parsed: ParsedDocument;
+  try {
+    parsed = await parseDocument(request);
+  } catch (error) {
+    const report = emptyReport(importId, 'rejected');
+    report.problems.push({ path: '', message: `the file could not be read: ${(error as Error).message}` });
+    await finish(db, report);
+    return report;
+  }
+  request.onProgress?.('parse', 1, 1);
+
+  const validCertificates = parsed.certificates.filter((c) => c.value).map((c) => prepareCertificate(c.value!));
+  const validTests = parsed.tests.filter((t) => t.value).map((t) => prepareTestRecord(t.value!));
+
+  let written: ApplyResult | null = null;
+  let plan: StorePlan | null = null;
+  const report = await db.transaction(async (tx) => {
+    plan = await planStore(tx, validCertificates, validTests, { revise: Boolean(options.revise), createMissing: Boolean(options.createMissing) });
+    const outcome = describe(importId, parsed, plan);
+    const clean = outcome.summary.invalid === 0 && outcome.problems.length === 0;
+    if (options.dryRun) {
+      // In a dry run the item statuses say what an import would do.
+      outcome.status = 'validated';
+    } else if (!clean && !options.acceptValid) {
+      outcome.status = 'rejected';
+      markNotWritten(outcome);
+    } else {
+      written = await applyInChunks(tx, plan, importId, request.onProgress);
+      await request.afterWrite?.(tx, written);
+      outcome.status = clean ? 'accepted' : 'partially_accepted';
+      outcome.summary.testsAdded = written.testsCreated;
+      outcome.summary.readingsAdded = written.readingsCreated;
+      for (const item of outcome.items) item.heatId ??= written.heatIds.get(item.key);
+      // The archive row changes state in the same transaction as the data: both or neither.
+      await finish(tx, outcome);
+    }
+    return outcome;
+  });
+  if (report.status !== 'accepted' && report.status !== 'partially_accepted') await finish(db, report);
+  return report;
+}
+
+async function applyInChunks(
+  tx: Executor,
+  plan: StorePlan,
+  importId: number,
+  onProgress: ImportRequest['onProgress'],
+): Promise<ApplyResult> {
+  const total = plan.certificates.length + plan.tests.length;
+  const sum: ApplyResult = { heatsCreated: 0, certificatesWritten: 0, lotsCreated: 0, testsCreated: 0, readingsCreated: 0, heatIds: new Map() };
+  // Certificates first, so re-tests of heats created by this batch find them.
+  const chunks: StorePlan[] = [];
+  for (let i = 0; i < plan.certificates.length; i += STORE_CHUNK) {
+    chunks.push({ ...plan, certificates: plan.certificates.slice(i, i + STORE_CHUNK), tests: [] });
+  }
+  for (let i = 0; i < plan.tests.length; i += STORE_CHUNK) {
+    chunks.push({ certificates: [], tests: plan.tests.slice(i, i + STORE_CHUNK), newMills: [], newGrades: [] });
+  }
+  let done = 0;
+  for (const chunk of chunks) {
+    if (chunk.tests.length) {
+      chunk.tests = chunk.tests.map((t) => (t.heatId === null && sum.heatIds.has(t.record.key) ? { ...t, heatId: sum.heatIds.get(t.record.key)! } : t));
+    }
+    const r = await applyPlan(tx, chunk, importId);
+    sum.heatsCreated += r.heatsCreated;
+    sum.certificatesWritten += r.certificatesWritten;
+    sum.lotsCreated += r.lotsCreated;
+    sum.testsCreated += r.testsCreated;
+    sum.readingsCreated += r.readingsCreated;
+    for (const [k, v] of r.heatIds) sum.heatIds.set(k, v);
+    done += chunk.certificates.length + chunk.tests.length;
+    onProgress?.('store', done, total);
+  }
+  return sum;
+}
+
+async function parseDocument(request: ImportRequest): Promise<ParsedDocument> {
+  if (request.format === 'json') return parseJsonDocument(request.bytes, request.today);
+  const { parseCertificateTable } = await import('./tableParser.ts');
+  const table = await parseCertificateTable(request.bytes, { format: request.format, layout: request.layout, today: request.today });
+  return {
+    certificates: table.items
+      .filter((i) => i.kind === 'certificate')
+      .map((i) => ({ key: i.key, rows: i.rows, value: i.problems.length ? undefined : i.certificate, problems: i.problems })),
+    tests: table.items
+      .filter((i) => i.kind === 'test')
+      .map((i) => ({ key: i.key, rows: i.rows, value: i.problems.length ? undefined : i.testRecord, problems: i.problems })),
+    fileProblems: table.fileProblems,
+  };
+}
+
+/**
+ * JSON documents: one certificate, an array of certificates, or
+ * { certificates: [...], tests: [...] } where tests are re-tests of heats on file.
+ */
+export function parseJsonDocument(bytes: Uint8Array, today?: () => string): ParsedDocument {
+  let body: unknown;
+  try {
+    body = JSON.parse(Buffer.from(bytes).toString('utf8'));
+  } catch (error) {
+    throw new ImportError(`not valid JSON (${(error as Error).message})`, 'invalid_json');
+  }
+  const container =
+    Boolean(body) && typeof body === 'object' && !Array.isArray(body) && ('certificates' in body || ('tests' in body && !('heatNumber' in body)));
+  const certificates: unknown[] = container
+    ? ((body as { certificates?: unknown[] }).certificates ?? [])
+    : Array.isArray(body)
+      ? body
+      : [body];
+  const tests: unknown[] = container ? ((body as { tests?: unknown[] }).tests ?? []) : [];
+  const cSchema = certificateSchema(today);
+  const tSchema = testRecordSchema(today);
+  const keyOf = (raw: unknown, i: number, prefix: string) => {
+    const r = raw as { mill?: unknown; heatNumber?: unknown };
+    return typeof r?.mill === 'string' && typeof r?.heatNumber === 'string' ? `${r.mill}/${r.heatNumber}` : `${prefix}[${i}]`;
+  };
+  return {
+    certificates: certificates.map((raw, i) => {
+      const parsed = cSchema.safeParse(raw);
+      const base = container || Array.isArray(body) ? `certificates[${i}].` : '';
+      return parsed.success
+        ? { key: keyOf(raw, i, 'certificates'), value: parsed.data, problems: [] }
+        : { key: keyOf(raw, i, 'certificates'), problems: problemsFromZod(parsed.error).map((p) => ({ ...p, path: base + p.path })) };
+    }),
+    tests: tests.map((raw, i) => {
+      const parsed = tSchema.safeParse(raw);
+      return parsed.success
+        ? { key: keyOf(raw, i, 'tests'), value: parsed.data, problems: [] }
+        : { key: keyOf(raw, i, 'tests'), problems: problemsFromZod(parsed.error).map((p) => ({ ...p, path: `tests[${i}].${p.path}` })) };
+    }),
+    fileProblems: [],
+  };
+}
+
+function emptyReport(importId: number, status: ImportStatus): ImportReport {
+  return {
+    importId,
+    status,
+    summary: { items: 0, valid: 0, invalid: 0, created: 0, unchanged: 0, revised: 0, conflicts: 0, testsAdded: 0, readingsAdded: 0 },
+    problems: [],
+    items: [],
+  };
+}
+
+function certificateOutcome(item: CertificatePlanItem, rows?: number[]): ItemOutcome {
+  const d = item.decision;
+  const base = { key: item.certificate.key, kind: 'certificate' as const, rows, problems: [] as ValidationProblem[] };
+  switch (d.action) {
+    case 'create':
+      return { ...base, status: 'created', revision: 1 };
+    case 'unchanged':
+      return { ...base, status: 'unchanged', heatId: d.heatId, revision: d.revision };
+    case 'revise':
+      return { ...base, status: 'revised', heatId: d.heatId, revision: d.revision, differences: d.differences };
+    case 'conflict':
+      return {
+        ...base,
+        status: 'conflict',
+        heatId: d.heatId,
+        revision: d.revision,
+        differences: d.differences,
+        problems: [
+          {
+            row: rows?.[0],
+            path: '',
+            message: `heat ${item.certificate.key} is on file with different content (${d.differences.map((x) => x.field).join(', ')}); send it as a revision to replace it`,
+          },
+        ],
+      };
+    case 'reject':
+      return { ...base, status: 'rejected', problems: [{ row: rows?.[0], path: '', message: d.reason }] };
+  }
+}
+
+function describe(importId: number, parsed: ParsedDocument, plan: StorePlan): ImportReport {
+  const report = emptyReport(importId, 'rejected');
+  report.problems.push(...parsed.fileProblems);
+  const planned = [...plan.certificates];
+  for (const c of parsed.certificates) {
+    if (!c.value) {
+      report.items.push({ key: c.key, kind: 'certificate', rows: c.rows, status: 'invalid', problems: c.problems });
+      continue;
+    }
+    report.items.push(certificateOutcome(planned.shift()!, c.rows));
+  }
+  const plannedTests = [...plan.tests];
+  for (const t of parsed.tests) {
+    if (!t.value) {
+      report.items.push({ key: t.key, kind: 'test', rows: t.rows, status: 'invalid', problems: t.problems });
+      continue;
+    }
+    const item = plannedTests.shift()!;
+    report.items.push(
+      item.reject
+        ? { key: t.key, kind: 'test', rows: t.rows, status: 'rejected', problems: [{ row: t.rows?.[0], path: '', message: item.reject }] }
+        : { key: t.key, kind: 'test', rows: t.rows, status: 'added', heatId: item.heatId ?? undefined, problems: [] },
+    );
+  }
+  const s = report.summary;
+  s.items = report.items.length;
+  for (const item of report.items) {
+    if (item.status === 'invalid' || item.status === 'rejected' || item.status === 'conflict') s.invalid++;
+    if (item.status === 'created') s.created++;
+    if (item.status === 'unchanged') s.unchanged++;
+    if (item.status === 'revised') s.revised++;
+    if (item.status === 'conflict') s.conflicts++;
+  }
+  s.valid = s.items - s.invalid;
+  return report;
+}
+
+function markNotWritten(report: ImportReport): void {
+  for (const item of report.items) {
+    if (item.status === 'created' || item.status === 'revised' || item.status === 'added') item.status = 'not_written';
+  }
+}
+
+async function finish(ex: Executor, report: ImportReport): Promise<void> {
+  await ex.execute(sql`
+    update imports set status = ${report.status}, summary = ${JSON.stringify({ ...report.summary, duplicateOf: report.duplicateOf ?? null, problems: report.problems })}::jsonb,
+      row_report = ${JSON.stringify(report.items)}::jsonb, finished_at = now()
+    where id = ${report.importId}`);
+}
