@@ -1,0 +1,119 @@
+import { describe, expect, it } from 'vitest';
+import { heatConformance, testConformance } from '../../../src/hardenability/conformance.ts';
+import type { Band } from '../../../src/hardenability/bands.ts';
+import type { EndQuenchTest, TestSource } from '../../../src/hardenability/types.ts';
+import { sixteenthsToMm } from '../../../src/hardenability/distances.ts';
+
+// Source: EN 10084, 20MnCr5+H hardenability band (ISO 642 positions, mm).
+const band: Band = {
+  grade: '20MnCr5+H',
+  version: 1,
+  effectiveFrom: '2020-01-01',
+  status: 'active',
+  kind: 'standard',
+  points: [
+    { mm: 1.5, minHrc: 41, maxHrc: 49 },
+    { mm: 3, minHrc: 39, maxHrc: 49 },
+    { mm: 5, minHrc: 36, maxHrc: 48 },
+    { mm: 7, minHrc: 33, maxHrc: 46 },
+    { mm: 9, minHrc: 30, maxHrc: 43 },
+    { mm: 11, minHrc: 28, maxHrc: 42 },
+    { mm: 13, minHrc: 26, maxHrc: 41 },
+    { mm: 15, minHrc: 25, maxHrc: 39 },
+    { mm: 20, minHrc: 23, maxHrc: 37 },
+    { mm: 25, minHrc: 21, maxHrc: 35 },
+    { mm: 30, maxHrc: 34 },
+    { mm: 35, maxHrc: 33 },
+    { mm: 40, maxHrc: 32 },
+  ],
+};
+const ISO = [1.5, 3, 5, 7, 9, 11, 13, 15, 20, 25, 30, 35, 40];
+const good = [46, 45, 43, 40, 37, 35, 33, 31, 29, 27, 26, 25, 24];
+
+const test = (id: string, source: TestSource, testDate: string, hrc: number[], mm = ISO): EndQuenchTest => ({
+  id,
+  source,
+  testDate,
+  readings: mm.map((d, i) => ({ mm: d, hrc: hrc[i] })),
+});
+
+describe('testConformance', () => {
+  it('passes a curve inside the band with the margin to the nearer limit at every point', () => {
+    const r = testConformance(test('t1', 'mill_certificate', '2024-03-01', good), band);
+    expect(r.verdict).toBe('pass');
+    // At 1.5 mm: 46 is 5 above min 41 and 3 below max 49 -> margin 3 to the max.
+    expect(r.points[0]).toMatchObject({ hrc: 46, basis: 'measured', margin: 3, governingLimit: 'max' });
+    // At 40 mm (max only): 32 - 24 = 8.
+    expect(r.points[12]).toMatchObject({ margin: 8, governingLimit: 'max' });
+    expect(r.minMargin).toBe(Math.min(...r.points.map((p) => p.margin as number)));
+  });
+
+  it('fails a point outside with a negative margin equal to the miss', () => {
+    const low = [...good];
+    low[4] = 28; // 9 mm: min 30
+    const r = testConformance(test('t2', 'mill_certificate', '2024-03-01', low), band);
+    expect(r.verdict).toBe('fail');
+    expect(r.points[4]).toMatchObject({ verdict: 'fail', margin: -2, governingLimit: 'min' });
+    expect(r.counts.fail).toBe(1);
+  });
+
+  it('a reading exactly on a limit conforms (margin 0)', () => {
+    const edge = [...good];
+    edge[0] = 49;
+    const r = testConformance(test('t3', 'mill_certificate', '2024-03-01', edge), band);
+    expect(r.points[0]).toMatchObject({ verdict: 'pass', margin: 0 });
+  });
+
+  it('interpolates a J-distance test at ISO band points, says so, and marks uncovered points not tested', () => {
+    const js = [1, 2, 3, 4, 5, 6, 7, 8, 10, 12, 14, 16];
+    const hrc = [46, 45, 43, 40, 37, 35, 33, 31, 29, 27, 26, 25];
+    const r = testConformance(test('t4', 'receiving_inspection', '2024-03-02', hrc, js.map(sixteenthsToMm)), band);
+    // Measured range J1 = 1.5875 mm .. J16 = 25.4 mm: 1.5 mm and 30..40 mm are outside.
+    expect(r.points[0]).toMatchObject({ mm: 1.5, basis: 'not_tested', verdict: 'not_tested', margin: null });
+    expect(r.points.slice(10).every((p) => p.verdict === 'not_tested')).toBe(true);
+    expect(r.points.slice(1, 10).every((p) => p.basis === 'interpolated')).toBe(true);
+    expect(r.verdict).toBe('incomplete');
+    expect(r.counts).toMatchObject({ notTested: 4, interpolated: 9 });
+  });
+});
+
+describe('heatConformance', () => {
+  const millPass = test('mill', 'mill_certificate', '2024-03-01', good);
+  const bad = [...good];
+  bad[2] = 49; // 5 mm: max 48
+  const receivingFail = test('recv', 'receiving_inspection', '2024-04-10', bad);
+  const labPass = test('lab', 'outside_lab', '2024-05-01', good);
+
+  it('default: receiving inspection overrides the mill certificate, and the disagreement is visible', () => {
+    const h = heatConformance([millPass, receivingFail], band);
+    expect(h.verdict).toBe('fail');
+    expect(h.deciding.map((d) => d.testId)).toEqual(['recv']);
+    expect(h.setAside.map((d) => d.testId)).toEqual(['mill']);
+    expect(h.disagreement).toBe(true);
+  });
+
+  it('all tests must pass', () => {
+    const h = heatConformance([millPass, labPass], band, { kind: 'all_must_pass' });
+    expect(h.verdict).toBe('pass');
+    expect(heatConformance([millPass, receivingFail, labPass], band, { kind: 'all_must_pass' }).verdict).toBe('fail');
+  });
+
+  it('latest test wins', () => {
+    const h = heatConformance([millPass, receivingFail, labPass], band, { kind: 'latest_wins' });
+    expect(h.verdict).toBe('pass');
+    expect(h.deciding.map((d) => d.testId)).toEqual(['lab']);
+    expect(h.disagreement).toBe(true);
+  });
+
+  it('a custom source order can put the outside lab first', () => {
+    const h = heatConformance([receivingFail, labPass], band, {
+      kind: 'source_precedence',
+      order: ['outside_lab', 'receiving_inspection', 'mill_certificate'],
+    });
+    expect(h.verdict).toBe('pass');
+  });
+
+  it('no tests -> no verdict', () => {
+    expect(heatConformance([], band).verdict).toBe('no_tests');
+  });
+});
