@@ -141,7 +141,8 @@ export interface ValidationProblem {
 export function problemsFromZod(error: z.ZodError, base: Partial<ValidationProblem> = {}): ValidationProblem[] {
   return error.issues.map((issue) => {
     const path = issue.path.map(String).join('.');
-    return { ...base, path, message: `${path || 'certificate'} ${issue.message}`.trim() };
+    const message = issue.code === 'invalid_type' && /received undefined$/.test(issue.message) ? 'is required' : issue.message;
+    return { ...base, path, message: `${path || 'certificate'} ${message}`.trim() };
   });
 }
 

@@ -223,7 +223,7 @@ export function parseJsonDocument(bytes: Uint8Array, today?: () => string): Pars
     throw new ImportError(`not valid JSON (${(error as Error).message})`, 'invalid_json');
   }
   const container =
-    Boolean(body) && typeof body === 'object' && !Array.isArray(body) && ('certificates' in body || ('tests' in body && !('heatNumber' in body)));
+    body !== null && typeof body === 'object' && !Array.isArray(body) && ('certificates' in body || ('tests' in body && !('heatNumber' in body)));
   const certificates: unknown[] = container
     ? ((body as { certificates?: unknown[] }).certificates ?? [])
     : Array.isArray(body)

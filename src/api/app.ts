@@ -1,0 +1,69 @@
+// The HTTP application: JSON API under /api/v1, /healthz, /openapi.json. Every error leaves as JSON
+// with a stable code; unexpected ones are logged with their stack and answered without it.
+import { OpenAPIHono } from '@hono/zod-openapi';
+import { bodyLimit } from 'hono/body-limit';
+import { HTTPException } from 'hono/http-exception';
+import { ZodError } from 'zod';
+import { ping, type Database } from '../db/connection.ts';
+import type { Logger } from '../logger.ts';
+import { ApiError, errorResponse, problemsOf } from './errors.ts';
+import type { AppEnv } from './context.ts';
+import { catalogRoutes } from './routes/catalog.ts';
+import { ingestRoutes } from './routes/ingest.ts';
+
+export interface AppDependencies {
+  database: Database;
+  logger: Logger;
+  version?: string;
+}
+
+/** Largest document accepted in one request (a 10^5-row certificate file is about 30 MB of CSV). */
+export const MAX_UPLOAD_BYTES = 200 * 1024 * 1024;
+
+export function createApp({ database, logger, version = '0.1.0' }: AppDependencies) {
+  const app = new OpenAPIHono<AppEnv>({
+    defaultHook: (result, c) => {
+      if (!result.success) {
+        return errorResponse(c, 400, 'invalid_request', 'The request is not valid; see details.', problemsOf(result.error as ZodError));
+      }
+    },
+  });
+
+  app.use('/api/*', bodyLimit({ maxSize: MAX_UPLOAD_BYTES, onError: (c) => errorResponse(c, 413, 'too_large', `The document is larger than ${MAX_UPLOAD_BYTES / 2 ** 20} MiB.`) }));
+
+  app.get('/healthz', async (c) => {
+    try {
+      await ping(database.db);
+      return c.json({ status: 'ok', database: database.kind });
+    } catch (error) {
+      logger.error({ err: error }, 'health check: database unreachable');
+      return errorResponse(c, 503, 'database_unavailable', 'The database does not answer.');
+    }
+  });
+
+  catalogRoutes(app, database.db);
+  ingestRoutes(app, database.db);
+
+  app.doc31('/openapi.json', {
+    openapi: '3.1.0',
+    info: {
+      title: 'endquench API',
+      version,
+      description:
+        'Hardenability records of bar steel bought from mills: certificates, end-quench tests, bands, and their analysis. Predictions and statistics support decisions; acceptance follows the purchase specification and qualified personnel.',
+    },
+  });
+
+  app.notFound((c) => errorResponse(c, 404, 'not_found', `Nothing at ${c.req.method} ${c.req.path}.`));
+  app.onError((error, c) => {
+    if (error instanceof ApiError) return errorResponse(c, error.status, error.code, error.message, error.details);
+    if (error instanceof ZodError) return errorResponse(c, 400, 'invalid_request', 'The request is not valid; see details.', problemsOf(error));
+    if (error instanceof HTTPException) return errorResponse(c, error.status, 'http_error', error.message);
+    if (error instanceof SyntaxError) return errorResponse(c, 400, 'invalid_json', `The body is not valid JSON: ${error.message}`);
+    logger.error({ err: error, path: c.req.path }, 'unexpected error');
+    return errorResponse(c, 500, 'internal_error', 'Something went wrong on our side; it has been logged.');
+  });
+  return app;
+}
+
+export type App = ReturnType<typeof createApp>;

@@ -1,0 +1,113 @@
+// The `endquench` command line.
+import { readFile } from 'node:fs/promises';
+import { basename, extname } from 'node:path';
+import { Command, InvalidArgumentError } from 'commander';
+import cliProgress from 'cli-progress';
+import { loadConfig } from './config.ts';
+import { openDatabase } from './db/connection.ts';
+import { createLogger } from './logger.ts';
+import { startService } from './server.ts';
+import { runImport, type ImportFormat, type ImportReport } from './ingest/importPipeline.ts';
+import { loadMillLayout } from './ingest/millLayout.ts';
+
+const program = new Command();
+program.name('endquench').description('Hardenability records of bar steel from mills: ingest, analysis, alerts.');
+
+program
+  .command('serve')
+  .description('start the web service (PORT, HOST, DATABASE_URL, ENDQUENCH_DATA_DIR, LOG_LEVEL)')
+  .action(async () => {
+    const service = await startService();
+    const stop = async () => {
+      await service.stop();
+      process.exit(0);
+    };
+    process.once('SIGINT', stop);
+    process.once('SIGTERM', stop);
+  });
+
+program
+  .command('migrate')
+  .description('apply the database migrations and exit')
+  .action(async () => {
+    const config = loadConfig();
+    const database = await openDatabase({ url: config.databaseUrl, dataDir: config.dataDir });
+    await database.migrate();
+    await database.close();
+    console.log(`Migrations applied (${database.kind === 'pglite' ? `embedded database in ${config.dataDir}` : 'PostgreSQL server'}).`);
+  });
+
+const formatOption = (value: string): ImportFormat => {
+  if (value === 'csv' || value === 'xlsx' || value === 'json') return value;
+  throw new InvalidArgumentError('must be csv, xlsx or json');
+};
+
+program
+  .command('import')
+  .description('import a file of certificates and end-quench tests (CSV, XLSX or JSON)')
+  .argument('<file>', 'the document to import')
+  .option('--mill-layout <file>', "a mill layout (JSON) mapping the mill's own columns to ours")
+  .option('--format <format>', 'csv, xlsx or json (default: from the file extension)', formatOption)
+  .option('--dry-run', 'validate only; write nothing but the archived document')
+  .option('--accept-valid', 'write the valid rows and report the others (default: any invalid row rejects the file)')
+  .option('--create-missing', 'create mills and grades not yet on file')
+  .option('--revise', 'store changed certificates as new revisions')
+  .option('--json', 'print the full report as JSON')
+  .action(async (file: string, opts) => {
+    const config = loadConfig();
+    const format: ImportFormat = opts.format ?? formatOption(extname(file).slice(1).toLowerCase());
+    const bytes = new Uint8Array(await readFile(file));
+    const layout = opts.millLayout ? loadMillLayout(JSON.parse(await readFile(opts.millLayout, 'utf8'))) : undefined;
+    const database = await openDatabase({ url: config.databaseUrl, dataDir: config.dataDir });
+    await database.migrate();
+    const bar = process.stderr.isTTY ? new cliProgress.SingleBar({ format: ' {stage} [{bar}] {value}/{total}', hideCursor: true }, cliProgress.Presets.shades_classic) : null;
+    let started = false;
+    try {
+      const report = await runImport(database.db, {
+        bytes,
+        format,
+        filename: basename(file),
+        layout,
+        createdBy: 'cli',
+        options: { dryRun: opts.dryRun, acceptValid: opts.acceptValid, createMissing: opts.createMissing, revise: opts.revise },
+        onProgress: (stage, done, total) => {
+          if (!bar || stage !== 'store') return;
+          if (!started) bar.start(total, 0, { stage: 'writing' });
+          started = true;
+          bar.update(done);
+        },
+      });
+      bar?.stop();
+      if (opts.json) console.log(JSON.stringify(report, null, 2));
+      else console.log(formatReport(report));
+      process.exitCode = report.status === 'rejected' ? 1 : 0;
+    } finally {
+      await database.close();
+    }
+  });
+
+export function formatReport(report: ImportReport): string {
+  const s = report.summary;
+  const lines = [
+    `Import ${report.importId}: ${report.status.replace('_', ' ')}.`,
+    `  ${s.items} item(s): ${s.valid} valid, ${s.invalid} with problems; ${s.created} heat(s) new, ${s.revised} revised, ${s.unchanged} unchanged; ${s.testsAdded} test(s) and ${s.readingsAdded} reading(s) written.`,
+  ];
+  const problems = [...report.problems, ...report.items.flatMap((i) => i.problems)];
+  if (problems.length) {
+    lines.push(`  Problems (${problems.length}):`);
+    for (const p of problems.slice(0, 50)) {
+      const where = [p.row !== undefined ? `row ${p.row}` : null, p.column ? `column "${p.column}"` : null].filter(Boolean).join(', ');
+      lines.push(`  - ${where ? `${where}: ` : ''}${p.message}`);
+    }
+    if (problems.length > 50) lines.push(`  ... and ${problems.length - 50} more (use --json for all).`);
+  }
+  if (report.status === 'rejected') lines.push('  Nothing was written (the document is archived). Fix the rows above, or use --accept-valid to write the valid ones.');
+  return lines.join('\n');
+}
+
+program.parseAsync(process.argv).catch((error: Error) => {
+  const logger = createLogger('error');
+  logger.error({ err: error }, error.message);
+  console.error(`endquench: ${error.message}`);
+  process.exit(2);
+});
