@@ -2,7 +2,7 @@
 //
 // Sources:
 // - Least squares via QR, never the normal equations: Golub & Van Loan, Matrix Computations, 4th ed., §5.3;
-//   (XᵀX)⁻¹ = R⁻¹R⁻ᵀ (same book, §5.3.5 on the covariance). Accuracy benchmark: NIST StRD linear
+//   (XᵀX)⁻¹ = R⁻¹R⁻ᵀ (same section). Accuracy benchmark: NIST StRD linear
 //   regression data sets (Longley 1967, Norris), certified to 15 digits.
 // - t tests, overall F test, R², adjusted R², confidence and prediction intervals for a new row:
 //   D. C. Montgomery, E. A. Peck & G. G. Vining, Introduction to Linear Regression Analysis, 5th ed.,

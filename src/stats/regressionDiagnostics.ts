@@ -2,13 +2,13 @@
 //
 // Sources:
 // - Leverage h_i = diagonal of the hat matrix H = Q₁Q₁ᵀ: D. A. Belsley, E. Kuh & R. E. Welsch,
-//   Regression Diagnostics (Wiley, 1980), §2.1; computing it from Q: Golub & Van Loan, Matrix
+//   Regression Diagnostics (Wiley, 1980), ch. 2; computing it from Q: Golub & Van Loan, Matrix
 //   Computations, 4th ed., §5.3.
 // - Cook's distance D_i = e_i² h_i / (p s² (1 − h_i)²): R. D. Cook, "Detection of influential observation
 //   in linear regression", Technometrics 19(1), 1977.
 // - Externally studentised (deleted) residual t_i = e_i / (s_(i) √(1 − h_i)), with
-//   s_(i)² = (RSS − e_i²/(1 − h_i)) / (n − p − 1): Belsley, Kuh & Welsch (1980) eq. 2.11 ("RSTUDENT");
-//   R. D. Cook & S. Weisberg, Residuals and Influence in Regression (1982), §2.2.
+//   s_(i)² = (RSS − e_i²/(1 − h_i)) / (n − p − 1): Belsley, Kuh & Welsch (1980), ch. 2 ("RSTUDENT");
+//   R. D. Cook & S. Weisberg, Residuals and Influence in Regression (Chapman & Hall, 1982).
 // - Variance inflation factor VIF_j = 1/(1 − R_j²), R_j² from regressing predictor j on the others (with the
 //   intercept if the model has one); equal to SS_j·[(XᵀX)⁻¹]_jj with SS_j the sum of squares of x_j about
 //   its mean (about zero without an intercept): D. W. Marquardt, Technometrics 12(3), 1970; Montgomery,

@@ -82,7 +82,7 @@ function quantities(s: RidgeSpectrum, lambda: number): { rss: number; df: number
   return { rss, df, gcv };
 }
 
-/** Golden-section search for the minimum of f on [a, b] (J. Kiefer 1953; Numerical Recipes §10.2). */
+/** Golden-section search for the minimum of f on [a, b] (J. Kiefer, Proc. AMS 4, 1953; Press et al., Numerical Recipes). */
 function goldenMin(f: (t: number) => number, a: number, b: number, tol: number): number {
   const g = (Math.sqrt(5) - 1) / 2;
   let x1 = b - g * (b - a);

@@ -5,6 +5,7 @@
 // in statsmodels' test results (statsmodels/regression/tests/results/results_regression.py) — they agree.
 // Norris.dat data agree with the copy in the GNU Scientific Library's fit tests.
 import { describe, expect, it } from 'vitest';
+import { Matrix, solve } from 'ml-matrix';
 import { fitOls } from '../../src/stats/ols.ts';
 
 /** Relative error, the measure NIST uses (its LRE is −log10 of this). */
@@ -94,6 +95,17 @@ describe('NIST StRD Longley (higher difficulty)', () => {
     expect(rel(fit.fStatistic, longleyCertified.f)).toBeLessThan(TOL);
     expect(fit.dfModel).toBe(6);
     expect(fit.dfResidual).toBe(9);
+  });
+});
+
+describe('NIST StRD Longley is a discriminating check', () => {
+  it('the normal equations (XᵀX)b = Xᵀy solved in doubles miss the 1e-9 bound that QR meets', () => {
+    // Control: the same certified values, computed the way this library must not (LU on XᵀX, ml-matrix).
+    const X = new Matrix(longley.map((r) => [1, ...r.slice(1)]));
+    const y = Matrix.columnVector(longley.map((r) => r[0]));
+    const b = solve(X.transpose().mmul(X), X.transpose().mmul(y));
+    const worst = Math.max(...longleyCertified.estimate.map((e, j) => rel(b.get(j, 0), e)));
+    expect(worst).toBeGreaterThan(TOL);
   });
 });
 
