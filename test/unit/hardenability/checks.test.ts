@@ -1,0 +1,134 @@
+import { describe, expect, it } from 'vitest';
+import { checkCurveNonIncreasing, curveRises } from '../../../src/hardenability/checks/curveShape.ts';
+import { checkMartensiteCeiling } from '../../../src/hardenability/checks/martensiteCeiling.ts';
+import { checkChemistryLimits } from '../../../src/hardenability/checks/chemistryLimits.ts';
+import { findPossibleCopies } from '../../../src/hardenability/checks/copies.ts';
+import type { HeatRecord } from '../../../src/hardenability/checks/copies.ts';
+import { checkAgainstPrediction } from '../../../src/hardenability/checks/prediction.ts';
+import type { Reading } from '../../../src/hardenability/types.ts';
+
+const ISO = [1.5, 3, 5, 7, 9, 11, 13, 15, 20, 25, 30, 35, 40];
+const curve = (hrc: number[]): Reading[] => ISO.slice(0, hrc.length).map((mm, i) => ({ mm, hrc: hrc[i] }));
+const good = [46, 45, 43, 40, 37, 35, 33, 31, 29, 27, 26, 25, 24];
+
+describe('curve non-increasing within tolerance', () => {
+  it('passes a falling curve and a 1 HRC wobble (within 2 HRC, common practice)', () => {
+    expect(checkCurveNonIncreasing(curve(good)).verdict).toBe('pass');
+    const wobble = [...good];
+    wobble[8] = 32; // 29 -> 32 after 31 at 15 mm: a 1 HRC rise
+    const r = checkCurveNonIncreasing(curve(wobble));
+    expect(r.verdict).toBe('pass');
+    expect(r.values.largestRise).toBe(1);
+    expect(r.summary).toMatch(/within the 2 HRC/);
+  });
+
+  it('fails a rise beyond the tolerance and names the two readings', () => {
+    const bad = [...good];
+    bad[6] = 30; // dip at 13 mm ...
+    bad[8] = 33; // ... then 33 at 20 mm: 3 above the lowest nearer reading
+    const r = checkCurveNonIncreasing(curve(bad));
+    expect(r.verdict).toBe('fail');
+    expect(r.values.largestRise).toBe(3);
+    expect(r.summary).toMatch(/30 at 13 mm to 33 at 20 mm/);
+    expect(checkCurveNonIncreasing(curve(bad), { toleranceHrc: 3 }).verdict).toBe('pass');
+  });
+
+  it('rises are measured from the lowest reading nearer the quenched end', () => {
+    expect(curveRises(curve([40, 35, 37, 36]))).toEqual([
+      { fromMm: 3, fromHrc: 35, toMm: 5, toHrc: 37, rise: 2 },
+      { fromMm: 3, fromHrc: 35, toMm: 7, toHrc: 36, rise: 1 },
+    ]);
+  });
+});
+
+describe('J1 against the martensite ceiling', () => {
+  it('0.20 % C: 44 HRC passes, 46 warns, 48 fails (ceiling IH(0.20) = 44.4 HRC, ASTM A255)', () => {
+    expect(checkMartensiteCeiling(curve([44, 42]), 0.2).verdict).toBe('pass');
+    const w = checkMartensiteCeiling(curve([46, 42]), 0.2);
+    expect(w.verdict).toBe('warn');
+    expect(w.values.ceilingHrc).toBeCloseTo(44.4, 1);
+    const f = checkMartensiteCeiling(curve([48, 42]), 0.2);
+    expect(f.verdict).toBe('fail');
+    expect(f.summary).toMatch(/3\.6 HRC above 44\.4 HRC/);
+  });
+
+  it('is not applicable where the ceiling relation is not usable', () => {
+    expect(checkMartensiteCeiling(curve([60]), 1.0).verdict).toBe('not_applicable');
+  });
+});
+
+describe('chemistry against grade limits', () => {
+  // Source: SAE J1268 8620H chemistry: C .17-.23 Mn .60-.95 Si .15-.35 Ni .35-.75 Cr .35-.65 Mo .15-.25.
+  const limits = {
+    C: { min: 0.17, max: 0.23 }, Mn: { min: 0.6, max: 0.95 }, Si: { min: 0.15, max: 0.35 },
+    Ni: { min: 0.35, max: 0.75 }, Cr: { min: 0.35, max: 0.65 }, Mo: { min: 0.15, max: 0.25 },
+  };
+  it('passes a heat inside, fails one outside, warns within an agreed tolerance or when unreported', () => {
+    const chem = { C: 0.2, Mn: 0.8, Si: 0.25, Ni: 0.5, Cr: 0.5, Mo: 0.2 };
+    expect(checkChemistryLimits(chem, limits).verdict).toBe('pass');
+    const out = checkChemistryLimits({ ...chem, Mn: 0.98 }, limits);
+    expect(out.verdict).toBe('fail');
+    expect(out.values.rows.find((r) => r.element === 'Mn')?.excess).toBeCloseTo(0.03, 12);
+    expect(out.summary).toMatch(/Mn 0.98/);
+    expect(checkChemistryLimits({ ...chem, Mn: 0.98 }, limits, { tolerances: { Mn: 0.04 } }).verdict).toBe('warn');
+    const { Mo: _mo, ...noMo } = chem;
+    expect(checkChemistryLimits(noMo, limits).verdict).toBe('warn');
+  });
+});
+
+describe('possible copied certificates', () => {
+  const chem = { C: 0.2, Mn: 0.81, Si: 0.24, Ni: 0.52, Cr: 0.49, Mo: 0.21, P: 0.012, S: 0.021 };
+  const target: HeatRecord = { heatId: 'H1', millId: 'M1', readings: curve(good), chemistry: chem };
+
+  it('finds an exact copy of the curve at another heat of the same mill, not at another mill', () => {
+    const r = findPossibleCopies(target, [
+      { heatId: 'H2', millId: 'M1', readings: curve(good) },
+      { heatId: 'H3', millId: 'M2', readings: curve(good) },
+      { heatId: 'H1', millId: 'M1', readings: curve(good) },
+    ]);
+    expect(r.verdict).toBe('fail');
+    expect(r.values.matches).toEqual([{ otherHeatId: 'H2', kind: 'curve_exact', compared: 13, largestDifference: 0 }]);
+    expect(r.values.candidatesCompared).toBe(1);
+  });
+
+  it('near match within rounding warns; a real difference does not match', () => {
+    const near = good.map((h, i) => (i === 3 ? h + 0.5 : h));
+    const far = good.map((h, i) => (i === 3 ? h + 2 : h));
+    const r = findPossibleCopies(target, [
+      { heatId: 'H4', millId: 'M1', readings: curve(near) },
+      { heatId: 'H5', millId: 'M1', readings: curve(far) },
+    ]);
+    expect(r.verdict).toBe('warn');
+    expect(r.values.matches.map((m) => [m.otherHeatId, m.kind])).toEqual([['H4', 'curve_near']]);
+  });
+
+  it('matches chemistry exactly or within half a unit of the last digit, and needs enough elements', () => {
+    const r = findPossibleCopies(target, [
+      { heatId: 'H6', millId: 'M1', chemistry: { ...chem } },
+      { heatId: 'H7', millId: 'M1', chemistry: { ...chem, Mn: 0.814 } },
+      { heatId: 'H8', millId: 'M1', chemistry: { ...chem, Mn: 0.83 } },
+      { heatId: 'H9', millId: 'M1', chemistry: { C: 0.2, Mn: 0.81 } },
+    ]);
+    expect(r.values.matches.map((m) => [m.otherHeatId, m.kind])).toEqual([
+      ['H6', 'chemistry_exact'],
+      ['H7', 'chemistry_near'],
+    ]);
+  });
+});
+
+describe('reported curve against a predicted one', () => {
+  it('standardised residual z = (reported - mean) / sd at common distances', () => {
+    const prediction = ISO.slice(0, 5).map((mm, i) => ({ mm, mean: good[i], sd: 2 }));
+    const reported = curve([46, 45, 43, 45, 37, 35]);
+    const r = checkAgainstPrediction(reported, prediction);
+    // At 7 mm: (45 - 40) / 2 = 2.5 -> warn (between 2 and 3).
+    expect(r.verdict).toBe('warn');
+    expect(r.values.rows.find((x) => x.mm === 7)?.z).toBe(2.5);
+    expect(r.values.notCompared).toEqual([11]);
+    // Sum of z^2 = 6.25 on 5 df; scipy.stats.chi2.sf(6.25, 5) = 0.282647 (scipy 1.10.1).
+    expect(r.values.sumZ2).toBe(6.25);
+    expect(r.values.pValue).toBeCloseTo(0.282647, 5);
+    expect(checkAgainstPrediction(curve([46, 45, 43, 47]), prediction).verdict).toBe('fail');
+    expect(() => checkAgainstPrediction(reported, [{ mm: 1.5, mean: 40, sd: 0 }])).toThrow(/positive SD/);
+  });
+});
