@@ -94,11 +94,17 @@ describe('capability properties (fast-check)', () => {
       fc.property(series, fc.double({ min: -50, max: 50, noNaN: true }), fc.boolean(), (xs, shift, twoSided) => {
         const probe = capability({ values: xs }, { lsl: 0 }, { percentile: 'never' });
         fc.pre(probe.sigmaWithin > 1e-6 && probe.sigmaOverall > 1e-6);
-        const band = twoSided ? { lsl: 15, usl: 65, target: 40 } : { usl: 65 };
+        const band: { lsl: number | null; usl: number; target: number | null } = twoSided
+          ? { lsl: 15, usl: 65, target: 40 }
+          : { lsl: null, usl: 65, target: null };
         const a = capability({ values: xs }, band, { percentile: 'always' });
         const b = capability(
           { values: xs.map((v) => v + shift) },
-          { lsl: 'lsl' in band ? band.lsl + shift : null, usl: band.usl + shift, target: 'target' in band ? band.target + shift : null },
+          {
+            lsl: band.lsl === null ? null : band.lsl + shift,
+            usl: band.usl + shift,
+            target: band.target === null ? null : band.target + shift,
+          },
           { percentile: 'always' },
         );
         for (const key of ['cp', 'cpu', 'cpl', 'cpk', 'pp', 'ppu', 'ppl', 'ppk', 'cpm'] as const) {
