@@ -30,6 +30,13 @@ describe('distance systems', () => {
     expect(A255_POSITIONS_SIXTEENTHS.slice(16)).toEqual([18, 20, 22, 24, 28, 32]);
   });
 
+  it('accepts any distance on the specimen and nothing beyond it', () => {
+    // Common practice: end-quench specimen 25 mm x 100 mm (ISO 642) or 1 in x 4 in = 101.6 mm (ASTM A255).
+    expect(parseDistanceLabel('100 mm').mm).toBe(100);
+    expect(parseDistanceLabel('J64').mm).toBeCloseTo(101.6, 12);
+    expect(() => parseDistanceLabel('102 mm')).toThrow(/longer than the end-quench specimen/);
+  });
+
   it('property: mm -> sixteenths -> mm returns the input', () => {
     fc.assert(
       fc.property(fc.double({ min: 0.01, max: 101.6, noNaN: true }), (mm) => {
