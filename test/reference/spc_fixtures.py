@@ -210,8 +210,8 @@ A = rng.normal(0, 1, (p, p))
 cov = A @ A.T + p * np.eye(p)
 m = 60
 X = rng.multivariate_normal(np.linspace(50, 30, p), cov, m)
-X[17] += np.array([6.0, -4.0, 0.0, 3.0, 5.0])  # two disturbed heats
-X[42, 2] += 9.0
+X[17] += np.array([12.0, -9.0, 0.0, 7.0, 10.0])  # two disturbed heats
+X[42, 2] += 14.0
 alpha = 0.0027
 
 
@@ -257,7 +257,7 @@ LW, shrink = ledoit_wolf(X)
 Xsmall = X[:5]  # m = 5 <= p + 1: only the shrinkage estimator applies
 LWs, shrink_s = ledoit_wolf(Xsmall)
 newX = rng.multivariate_normal(np.linspace(50, 30, p), cov, 8)
-newX[3] += np.array([0.0, 0.0, 8.0, 0.0, -8.0])
+newX[3] += np.array([0.0, 0.0, 12.0, 0.0, -12.0])
 fix["hotelling"] = {
     "X": [f(r) for r in X], "alpha": alpha, "mean": f(mean), "covariance": [f(r) for r in S],
     "t2": f(t2), "uclPhaseOne": float(ucl1), "uclPhaseTwo": float(ucl2),
