@@ -3,6 +3,7 @@
 // certificate can hold (common practice: carbon above 2 % is cast iron, not steel; end-quench
 // hardness above 70 HRC is beyond any steel's martensite).
 import { z } from 'zod';
+import { SPECIMEN_LENGTH_MM, sixteenthsToMm } from '../hardenability/distances.ts';
 
 export const ELEMENTS = ['C', 'Mn', 'Si', 'P', 'S', 'Cr', 'Ni', 'Mo', 'Cu', 'V', 'Al', 'B', 'Ti', 'Nb', 'N'] as const;
 export type Element = (typeof ELEMENTS)[number];
@@ -72,6 +73,10 @@ export function testSchema(today?: () => string) {
     .superRefine((t, ctx) => {
       const seen = new Map<number, number>();
       t.readings.forEach((r, i) => {
+        const mm = t.distanceSystem === 'mm' ? r.at : sixteenthsToMm(r.at);
+        if (mm > SPECIMEN_LENGTH_MM + 1e-9) {
+          ctx.addIssue({ code: 'custom', path: ['readings', i, 'at'], message: `${r.at} ${t.distanceSystem === 'mm' ? 'mm' : 'sixteenths'} lies beyond the end of the ${SPECIMEN_LENGTH_MM} mm specimen` });
+        }
         const first = seen.get(r.at);
         if (first !== undefined) {
           ctx.addIssue({ code: 'custom', path: ['readings', i, 'at'], message: `distance ${r.at} appears twice in one test (also reading ${first + 1})` });

@@ -1,6 +1,7 @@
 // Turns validated canonical records into rows ready to store: distances in exact millimetres, canonical
 // JSON and content hashes (what makes a repeated certificate or test recognisable), chemistry by column.
 import { createHash } from 'node:crypto';
+import { distanceLabel, sixteenthsToMm } from '../hardenability/distances.ts';
 import {
   ELEMENTS,
   type CertificateInput,
@@ -9,9 +10,6 @@ import {
   type LotInput,
   type TestRecordInput,
 } from './certificateSchema.ts';
-
-/** Exact by definition of the inch (25.4 mm). */
-export const MM_PER_SIXTEENTH_INCH = 25.4 / 16;
 
 export interface PreparedReading {
   distanceMm: number;
@@ -84,11 +82,7 @@ export function heatKey(mill: string, heatNumber: string): string {
 }
 
 export function toMillimetres(at: number, system: DistanceSystem): number {
-  return system === 'mm' ? at : at * MM_PER_SIXTEENTH_INCH;
-}
-
-export function distanceLabel(at: number, system: DistanceSystem): string {
-  return system === 'mm' ? `${at} mm` : `J${at}`;
+  return system === 'mm' ? at : sixteenthsToMm(at);
 }
 
 /** JSON with keys sorted at every level and undefined dropped: equal content gives equal text. */

@@ -4,7 +4,8 @@ import type { Db } from '../../db/connection.ts';
 import { addBandVersion, listBands, listGrades, listMills, findGrade, upsertGrade, upsertMill } from '../../db/referenceData.ts';
 import { getHeat, listHeats } from '../../db/heats.ts';
 import { ELEMENTS } from '../../ingest/certificateSchema.ts';
-import { toMillimetres, distanceLabel } from '../../ingest/prepare.ts';
+import { toMillimetres } from '../../ingest/prepare.ts';
+import { distanceLabel } from '../../hardenability/distances.ts';
 import { ApiError, errorBodySchema } from '../errors.ts';
 import type { AppEnv } from '../context.ts';
 
