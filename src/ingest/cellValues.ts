@@ -209,10 +209,17 @@ const EXCEL_EPOCH_MS = Date.UTC(1899, 11, 30);
 /** Excel serials accepted as dates: 1 (1900-01-01) .. 109574 (2199-12-31). */
 const MAX_EXCEL_SERIAL = 109574;
 
+const DAYS_IN_MONTH = [31, 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31];
+
+/** Gregorian calendar: a leap year is divisible by 4, except centuries not divisible by 400. */
+function daysInMonth(y: number, m: number): number {
+  if (m === 2 && y % 4 === 0 && (y % 100 !== 0 || y % 400 === 0)) return 29;
+  return DAYS_IN_MONTH[m - 1];
+}
+
 function isoFromParts(y: number, m: number, d: number): string | undefined {
-  const dt = new Date(Date.UTC(y, m - 1, d));
-  if (dt.getUTCFullYear() !== y || dt.getUTCMonth() !== m - 1 || dt.getUTCDate() !== d) return undefined;
-  return dt.toISOString().slice(0, 10);
+  if (y < 1000 || y > 9999 || m < 1 || m > 12 || d < 1 || d > daysInMonth(y, m)) return undefined;
+  return `${y}-${m < 10 ? '0' : ''}${m}-${d < 10 ? '0' : ''}${d}`;
 }
 
 /** Two-digit years: 00-69 are 2000-2069, 70-99 are 1970-1999. */

@@ -29,11 +29,12 @@ describe('our own J-distance headers', () => {
 
 describe('mill layout distance headers', () => {
   it('reads an explicit map and a pattern', () => {
+    const pattern = '^HRC @ (\\d+)$';
     const specs = [
       { unit: 'sixteenths' as const, columns: { 'Jominy 1': 1 } },
-      { unit: 'sixteenths' as const, pattern: '^HRC @ (\\d+)$' },
+      { unit: 'sixteenths' as const, pattern },
     ];
-    const compiled = new Map([[specs[1].pattern, compileDistancePattern(specs[1].pattern)]]);
+    const compiled = new Map([[pattern, compileDistancePattern(pattern)]]);
     expect(readLayoutDistanceHeader(' jominy  1 ', specs, compiled)).toEqual({ kind: 'distance', position: { system: 'sixteenths', at: 1 } });
     expect(readLayoutDistanceHeader('HRC @ 12', specs, compiled)).toEqual({ kind: 'distance', position: { system: 'sixteenths', at: 12 } });
     expect(readLayoutDistanceHeader('Remarks', specs, compiled)).toEqual({ kind: 'not-distance' });
