@@ -19,6 +19,7 @@ export interface CovarianceEstimate {
   shrinkage: number | null;
 }
 
+/** Validates a rectangular, finite m × p table of observations; returns its shape. */
 export function checkRows(rows: readonly (readonly number[])[]): { m: number; p: number } {
   const m = rows.length;
   if (m === 0) throw new StatsInputError('no observations');
@@ -32,6 +33,7 @@ export function checkRows(rows: readonly (readonly number[])[]): { m: number; p:
   return { m, p };
 }
 
+/** Column means x̄ of the observations. */
 export function meanVector(rows: readonly (readonly number[])[]): number[] {
   const { m, p } = checkRows(rows);
   const mu = new Array<number>(p).fill(0);

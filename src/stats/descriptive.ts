@@ -8,6 +8,7 @@ export class StatsInputError extends Error {
   override name = 'StatsInputError';
 }
 
+/** Throws StatsInputError naming the first non-finite entry. */
 export function assertFinite(values: ArrayLike<number>, what = 'values'): void {
   for (let i = 0; i < values.length; i++) {
     if (!Number.isFinite(values[i])) throw new StatsInputError(`${what}[${i}] is not a finite number`);
