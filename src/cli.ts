@@ -9,6 +9,7 @@ import { createLogger } from './logger.ts';
 import { startService } from './server.ts';
 import { runImport, type ImportFormat, type ImportReport } from './ingest/importPipeline.ts';
 import { loadMillLayout } from './ingest/millLayout.ts';
+import { register as registerTokenCommands } from './cliCommands/token.ts';
 
 const program = new Command();
 program.name('endquench').description('Hardenability records of bar steel from mills: ingest, analysis, alerts.');
@@ -104,6 +105,8 @@ export function formatReport(report: ImportReport): string {
   if (report.status === 'rejected') lines.push('  Nothing was written (the document is archived). Fix the rows above, or use --accept-valid to write the valid ones.');
   return lines.join('\n');
 }
+
+registerTokenCommands(program);
 
 program.parseAsync(process.argv).catch((error: Error) => {
   const logger = createLogger('error');

@@ -8,6 +8,14 @@ const schema = z.object({
   DATABASE_URL: z.string().url().optional(),
   ENDQUENCH_DATA_DIR: z.string().min(1).default('./data'),
   LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
+  /** Serve a non-local HOST although no API token exists (everyone is then administrator). */
+  ENDQUENCH_ALLOW_OPEN: z.enum(['0', '1', 'true', 'false']).default('0'),
+  /** Webhook dispatcher: off to run it elsewhere; attempts before dead; pause between rounds; answer timeout; first back-off. */
+  ENDQUENCH_WEBHOOKS: z.enum(['on', 'off']).default('on'),
+  ENDQUENCH_WEBHOOK_MAX_ATTEMPTS: z.coerce.number().int().min(1).max(100).default(8),
+  ENDQUENCH_WEBHOOK_INTERVAL_MS: z.coerce.number().int().min(50).default(2000),
+  ENDQUENCH_WEBHOOK_TIMEOUT_MS: z.coerce.number().int().min(100).default(10_000),
+  ENDQUENCH_WEBHOOK_BACKOFF_MS: z.coerce.number().int().min(1).default(5000),
 });
 
 export interface Config {
@@ -16,6 +24,10 @@ export interface Config {
   databaseUrl?: string;
   dataDir: string;
   logLevel: z.infer<typeof schema>['LOG_LEVEL'];
+  /** See ENDQUENCH_ALLOW_OPEN. */
+  allowOpen?: boolean;
+  /** Webhook dispatcher settings; absent means the defaults of createDispatcher. */
+  webhooks?: { enabled: boolean; maxAttempts: number; intervalMs: number; timeoutMs: number; baseDelayMs: number };
 }
 
 export class ConfigError extends Error {}
@@ -34,5 +46,13 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     databaseUrl: c.DATABASE_URL,
     dataDir: resolve(c.ENDQUENCH_DATA_DIR),
     logLevel: c.LOG_LEVEL,
+    allowOpen: c.ENDQUENCH_ALLOW_OPEN === '1' || c.ENDQUENCH_ALLOW_OPEN === 'true',
+    webhooks: {
+      enabled: c.ENDQUENCH_WEBHOOKS === 'on',
+      maxAttempts: c.ENDQUENCH_WEBHOOK_MAX_ATTEMPTS,
+      intervalMs: c.ENDQUENCH_WEBHOOK_INTERVAL_MS,
+      timeoutMs: c.ENDQUENCH_WEBHOOK_TIMEOUT_MS,
+      baseDelayMs: c.ENDQUENCH_WEBHOOK_BACKOFF_MS,
+    },
   };
 }

@@ -4,6 +4,13 @@ import { loadConfig, type Config } from './config.ts';
 import { openDatabase, type Database } from './db/connection.ts';
 import { createLogger, type Logger } from './logger.ts';
 import { createApp } from './api/app.ts';
+import { hasActiveTokens } from './db/tokens.ts';
+import { isLoopbackHost } from './auth/local.ts';
+import { createDispatcher } from './alerts/dispatcher.ts';
+import { outOfBandRule } from './alerts/rules/outOfBand.ts';
+
+/** Refusal to serve a non-local address while no API token exists. */
+export class OpenBindRefused extends Error {}
 
 export interface RunningService {
   url: string;
@@ -18,7 +25,20 @@ export async function startService(config: Config = loadConfig(), logger: Logger
     database.kind === 'pglite' ? 'using the embedded database (set DATABASE_URL to use a PostgreSQL server)' : 'using the PostgreSQL server from DATABASE_URL',
   );
   await database.migrate();
-  const app = createApp({ database, logger });
+  if (!isLoopbackHost(config.host) && !config.allowOpen && !(await hasActiveTokens(database.db))) {
+    await database.close();
+    throw new OpenBindRefused(
+      `Refusing to serve ${config.host}: no API token exists, so anyone who can reach it would be administrator. Create one first (endquench token create --role admin --name <name>), bind HOST=127.0.0.1, or set ENDQUENCH_ALLOW_OPEN=1 if the network itself is trusted.`,
+    );
+  }
+  if (config.allowOpen && !isLoopbackHost(config.host)) logger.warn({ host: config.host }, 'ENDQUENCH_ALLOW_OPEN: while no API token exists, every caller is administrator');
+  const app = createApp({ database, logger, access: { allowOpen: config.allowOpen, afterWrite: [outOfBandRule] } });
+  const webhooks = config.webhooks;
+  const dispatcher =
+    webhooks?.enabled === false
+      ? null
+      : createDispatcher({ db: database.db, logger, ...(webhooks ? { maxAttempts: webhooks.maxAttempts, intervalMs: webhooks.intervalMs, timeoutMs: webhooks.timeoutMs, baseDelayMs: webhooks.baseDelayMs } : {}) });
+  dispatcher?.start();
   const server: ServerType = await new Promise((resolve) => {
     const s = serve({ fetch: app.fetch, port: config.port, hostname: config.host }, () => resolve(s));
   });
@@ -30,6 +50,7 @@ export async function startService(config: Config = loadConfig(), logger: Logger
     url,
     database,
     stop: async () => {
+      await dispatcher?.stop();
       await new Promise<void>((resolve) => server.close(() => resolve()));
       await database.close();
     },

@@ -10,17 +10,23 @@ import { ApiError, errorResponse, problemsOf } from './errors.ts';
 import type { AppEnv } from './context.ts';
 import { catalogRoutes } from './routes/catalog.ts';
 import { ingestRoutes } from './routes/ingest.ts';
+import { alertRoutes } from './routes/alerts.ts';
+import { webhookRoutes } from './routes/webhooks.ts';
+import { accessControl, type AfterWriteHook } from '../auth/middleware.ts';
+import { annotateRoles } from '../auth/openapiRoles.ts';
 
 export interface AppDependencies {
   database: Database;
   logger: Logger;
   version?: string;
+  /** Access control: serve every caller as admin while no token exists (ENDQUENCH_ALLOW_OPEN), and the hooks an ingest runs in its transaction (alert rules). */
+  access?: { allowOpen?: boolean; afterWrite?: readonly AfterWriteHook[] };
 }
 
 /** Largest document accepted in one request (a 10^5-row certificate file is about 30 MB of CSV). */
 export const MAX_UPLOAD_BYTES = 200 * 1024 * 1024;
 
-export function createApp({ database, logger, version = '0.1.0' }: AppDependencies) {
+export function createApp({ database, logger, version = '0.1.0', access = {} }: AppDependencies) {
   const app = new OpenAPIHono<AppEnv>({
     defaultHook: (result, c) => {
       if (!result.success) {
@@ -29,6 +35,8 @@ export function createApp({ database, logger, version = '0.1.0' }: AppDependenci
     },
   });
 
+  // Who is calling and whether the role may (src/auth/policy.ts); public routes pass untouched.
+  app.use('*', accessControl({ db: database.db, ...access }));
   app.use('/api/*', bodyLimit({ maxSize: MAX_UPLOAD_BYTES, onError: (c) => errorResponse(c, 413, 'too_large', `The document is larger than ${MAX_UPLOAD_BYTES / 2 ** 20} MiB.`) }));
 
   app.get('/healthz', async (c) => {
@@ -43,8 +51,11 @@ export function createApp({ database, logger, version = '0.1.0' }: AppDependenci
 
   catalogRoutes(app, database.db);
   ingestRoutes(app, database.db);
+  alertRoutes(app, database.db);
+  webhookRoutes(app, database.db);
 
-  app.doc31('/openapi.json', {
+  // Every operation's role comes from the access policy (x-required-role, x-roles, security).
+  app.get('/openapi.json', (c) => c.json(annotateRoles(app.getOpenAPI31Document({
     openapi: '3.1.0',
     info: {
       title: 'endquench API',
@@ -52,7 +63,7 @@ export function createApp({ database, logger, version = '0.1.0' }: AppDependenci
       description:
         'Hardenability records of bar steel bought from mills: certificates, end-quench tests, bands, and their analysis. Predictions and statistics support decisions; acceptance follows the purchase specification and qualified personnel.',
     },
-  });
+  }))));
 
   app.notFound((c) => errorResponse(c, 404, 'not_found', `Nothing at ${c.req.method} ${c.req.path}.`));
   app.onError((error, c) => {
