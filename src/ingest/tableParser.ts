@@ -747,15 +747,21 @@ interface RowKey {
 }
 
 function keyOf(raw: RawRow, setup: Setup): RowKey {
-  const valueOf = (field: FieldName): Value | undefined => {
+  const UNREADABLE = Symbol('unreadable');
+  const valueOf = (field: FieldName): Value | undefined | typeof UNREADABLE => {
     const column = setup.fieldColumn.get(field);
     const read = column ? readField(field, raw.cells[column.index], setup) : undefined;
-    return read?.ok && read.value !== undefined ? read.value : read?.ok === false ? undefined : setup.defaults.get(field);
+    if (read && !read.ok) return UNREADABLE;
+    return read?.value !== undefined ? read.value : setup.defaults.get(field);
   };
   const hasChemistry = setup.chemistryColumns.some((c) => !isBlankCell(raw.cells[c.index]));
   const mill = valueOf('mill');
   const heat = valueOf('heat_number');
-  const reTest = !hasChemistry && RE_TEST_SOURCES.has(String(valueOf('source')));
+  // A row without chemistry is a re-test when its source says so; when its source cannot be read it
+  // stands alone too, so its problem does not spoil the heat's certificate.
+  const source = valueOf('source');
+  const reTest = !hasChemistry && (source === UNREADABLE || RE_TEST_SOURCES.has(String(source)));
+  if (mill === UNREADABLE || heat === UNREADABLE) return { raw, hasChemistry, reTest };
   return { raw, key: mill === undefined || heat === undefined ? undefined : heatKey(String(mill), String(heat)), hasChemistry, reTest };
 }
 

@@ -1,0 +1,122 @@
+import { readFileSync } from 'node:fs';
+import ExcelJS from 'exceljs';
+import { describe, expect, it } from 'vitest';
+import { loadMillLayout } from '../../../src/ingest/millLayout.ts';
+import { parseCertificateTable } from '../../../src/ingest/tableParser.ts';
+
+// Values checked below are the ones the test writes into the workbook.
+const today = () => '2025-06-30';
+const HEADER = ['mill', 'grade', 'heat_number', 'cast_date', 'C', 'Mn', 'lot_number', 'test_date', 'J 1/16', 'J 4/16', 'J 8/16'];
+const utc = (y: number, m: number, d: number) => new Date(Date.UTC(y, m - 1, d));
+
+async function toBytes(workbook: ExcelJS.Workbook): Promise<Uint8Array> {
+  return new Uint8Array(await workbook.xlsx.writeBuffer());
+}
+
+function sheetWith(workbook: ExcelJS.Workbook, name: string, rows: unknown[][]): ExcelJS.Worksheet {
+  const sheet = workbook.addWorksheet(name);
+  for (const r of rows) sheet.addRow(r);
+  return sheet;
+}
+
+describe('xlsx', () => {
+  it('round-trips typed cells: numbers, Excel dates, formulas (cached result) and rich text', async () => {
+    const wb = new ExcelJS.Workbook();
+    const sheet = sheetWith(wb, 'Data', [
+      HEADER,
+      ['AVS', '8620H', 'A1', utc(2024, 3, 2), 0.21, 0.84, 'L1', utc(2024, 3, 6), 46, 35, 25],
+      ['AVS', '8620H', 'A1', utc(2024, 3, 2), 0.21, 0.84, 'L2', utc(2024, 3, 6), 47, 34, 25],
+    ]);
+    sheet.getCell('J2').value = { formula: 'I2-11', result: 35 };
+    sheet.getCell('B3').value = { richText: [{ text: '8620' }, { text: 'H', font: { bold: true } }] };
+    const r = await parseCertificateTable(await toBytes(wb), { format: 'xlsx', today });
+    expect(r.fileProblems).toEqual([]);
+    expect(r.items).toHaveLength(1);
+    expect(r.items[0].problems).toEqual([]);
+    const c = r.items[0].certificate!;
+    expect(c).toMatchObject({ grade: '8620H', castDate: '2024-03-02', chemistry: { C: 0.21, Mn: 0.84 } });
+    expect(c.tests.map((t) => t.readings.map((x) => x.hrc))).toEqual([
+      [46, 35, 25],
+      [47, 34, 25],
+    ]);
+    expect(c.tests[0]).toMatchObject({ distanceSystem: 'sixteenths', testDate: '2024-03-06' });
+  });
+
+  it('gives the same records as the CSV for the committed sample pair', async () => {
+    const fromCsv = await parseCertificateTable(readFileSync(new URL('../../../seed/samples/certificates-example.csv', import.meta.url)), { format: 'csv', today });
+    const fromXlsx = await parseCertificateTable(readFileSync(new URL('../../../seed/samples/certificates-example.xlsx', import.meta.url)), { format: 'xlsx', today });
+    expect(fromCsv.items.every((i) => i.problems.length === 0)).toBe(true);
+    expect(fromCsv.items).toHaveLength(4);
+    expect(fromXlsx).toEqual(fromCsv);
+  });
+
+  it('drops blank and merged footer rows at the end, and reads a vertically merged cell in every row', async () => {
+    const wb = new ExcelJS.Workbook();
+    const sheet = sheetWith(wb, 'Data', [
+      HEADER,
+      ['AVS', '8620H', 'A1', utc(2024, 3, 2), 0.21, 0.84, 'L1', utc(2024, 3, 6), 46, 35, 25],
+      [null, '8620H', null, utc(2024, 3, 2), 0.21, 0.84, 'L2', utc(2024, 3, 6), 47, 34, 25],
+      [],
+      [],
+      ['Approved by the works laboratory'],
+    ]);
+    sheet.mergeCells('A2:A3');
+    sheet.mergeCells('C2:C3');
+    sheet.mergeCells('A6:K6');
+    const r = await parseCertificateTable(await toBytes(wb), { format: 'xlsx', today });
+    expect(r.rowCount).toBe(2);
+    expect(r.items.map((i) => [i.key, i.rows, i.problems])).toEqual([['AVS/A1', [2, 3], []]]);
+  });
+
+  it('reports an Excel error and a formula without a saved result at their cells', async () => {
+    const wb = new ExcelJS.Workbook();
+    const sheet = sheetWith(wb, 'Data', [HEADER, ['AVS', '8620H', 'A1', utc(2024, 3, 2), 0.21, 0.84, 'L1', utc(2024, 3, 6), 46, 35, 25]]);
+    sheet.getCell('F2').value = { error: '#DIV/0!' } as ExcelJS.CellErrorValue;
+    sheet.getCell('K2').value = { formula: 'J2-10' } as ExcelJS.CellFormulaValue;
+    const r = await parseCertificateTable(await toBytes(wb), { format: 'xlsx', today });
+    expect(r.items[0].problems.map((p) => [p.row, p.column, p.message])).toEqual([
+      [2, 'Mn', 'row 2, column "Mn": holds the Excel error #DIV/0!'],
+      [2, 'J 8/16', 'row 2, column "J 8/16": holds a formula with no saved result (open and save the file in a spreadsheet program)'],
+    ]);
+  });
+
+  it('reads the first sheet unless the layout names one, and reports a missing sheet', async () => {
+    const wb = new ExcelJS.Workbook();
+    sheetWith(wb, 'Cover', [['Hardenability report']]);
+    sheetWith(wb, 'Data', [
+      ['Melt', 'C %', 'J1'],
+      ['K-1', '0,40', 55],
+    ]);
+    const bytes = await toBytes(wb);
+    const layout = {
+      name: 'Two-sheet report',
+      millCode: 'KBW',
+      decimalComma: true,
+      columns: { heat_number: 'Melt', C: 'C %' },
+      distances: { unit: 'sixteenths', pattern: '^J(\\d+)$' },
+      defaults: { grade: '4140H', cast_date: '2024-01-04' },
+    };
+    const named = await parseCertificateTable(bytes, { format: 'xlsx', today, layout: loadMillLayout({ ...layout, sheet: 'data' }) });
+    expect(named.items[0].problems).toEqual([]);
+    expect(named.items[0].certificate).toMatchObject({ mill: 'KBW', grade: '4140H', castDate: '2024-01-04', chemistry: { C: 0.4 } });
+    const first = await parseCertificateTable(bytes, { format: 'xlsx', today, layout: loadMillLayout(layout) });
+    expect(first.fileProblems.map((p) => p.message)).toEqual([
+      'the file has no column "Melt", which the layout "Two-sheet report" names for heat_number; every row needs it',
+    ]);
+    const missing = await parseCertificateTable(bytes, { format: 'xlsx', today, layout: loadMillLayout({ ...layout, sheet: 'Results' }) });
+    expect(missing.fileProblems.map((p) => p.message)).toEqual(['the workbook has no sheet "Results" (it has "Cover", "Data")']);
+  });
+
+  it('reads an Excel serial number in a date column as a date', async () => {
+    const wb = new ExcelJS.Workbook();
+    // Excel 1900 date system: 45292 is 2024-01-01 (from memory); 45353 is 61 days later, 2024-03-02.
+    sheetWith(wb, 'Data', [HEADER, ['AVS', '8620H', 'A1', 45353, 0.21, 0.84, 'L1', '2024-03-06', 46, 35, 25]]);
+    const r = await parseCertificateTable(await toBytes(wb), { format: 'xlsx', today });
+    expect(r.items[0].certificate?.castDate).toBe('2024-03-02');
+  });
+
+  it('reports a file that is not a workbook', async () => {
+    const r = await parseCertificateTable(new TextEncoder().encode('mill,heat_number\n'), { format: 'xlsx', today });
+    expect(r.fileProblems[0].message).toMatch(/^the file is not a readable XLSX workbook/);
+  });
+});
