@@ -1,0 +1,263 @@
+// The plant's own chemistry-to-hardness model: per distance, an OLS regression of HRC on chemistry (and
+// grain size), by Householder QR (src/stats/ols.ts; Montgomery, Peck & Vining §§3.3–3.5), with seeded
+// k-fold cross-validated RMSE (Stone 1974; Hastie, Tibshirani & Friedman §7.10). Beside it, the
+// published predictor (ASTM A255 calculation, else Just 1969) is scored on exactly the same heats, with
+// the plant model's out-of-fold predictions on those heats, so the comparison is like for like. The
+// residual correlation between distances (Pearson, heats measured at every model distance) is kept for
+// the probability of meeting a whole band.
+import type { Db } from '../db/connection.ts';
+import { insertModel, type ModelRecord } from '../db/models.ts';
+import { fitOls, RankDeficientError } from '../stats/ols.ts';
+import { crossValidate } from '../stats/crossValidation.ts';
+import { ELEMENTS, type Element } from '../ingest/certificateSchema.ts';
+import { bandOn, labelFor } from './bandOf.ts';
+import { insufficientData, invalidInput } from './errors.ts';
+import { publishedAt, publishedCurve, type PublishedCurveResult } from './publishedPredictor.ts';
+import { distancesOf, groupByHeat, loadSeriesCurves, pointsAt, todayIso, type HeatCurve, type SeriesSource } from './seriesData.ts';
+
+export type Predictor = Element | 'grainSize';
+export const DEFAULT_PREDICTORS: readonly Predictor[] = ['C', 'Mn', 'Si', 'Ni', 'Cr', 'Mo', 'grainSize'];
+export const PREDICTOR_NAMES: readonly Predictor[] = [...ELEMENTS, 'grainSize'];
+
+export interface CoefficientView {
+  name: string;
+  estimate: number;
+  standardError: number;
+  t: number;
+  p: number;
+}
+
+export interface PublishedComparison {
+  /** Heats both the plant model and the published predictor could predict. */
+  heats: number;
+  heatIds: number[];
+  methods: string[];
+  /** The plant model's cross-validated RMSE on exactly these heats (out-of-fold predictions). */
+  plantCvRmse: number | null;
+  /** RMSE of the published predictor on the same heats (it has no fitted parameters: no folds needed). */
+  publishedRmse: number | null;
+  /** Mean of observed − published on these heats. */
+  publishedBias: number | null;
+  /** Heats the published predictor could not answer, with the first reason met. */
+  notComparable: number;
+  firstReason: string | null;
+}
+
+export interface DistanceModel {
+  distanceMm: number;
+  label: string;
+  n: number;
+  heatIds: number[];
+  terms: string[];
+  coefficients: CoefficientView[];
+  /** σ²(XᵀX)⁻¹ in term order. */
+  covariance: number[][];
+  dfResidual: number;
+  rSquared: number;
+  adjustedRSquared: number;
+  /** Residual standard deviation (the fit's RMSE). */
+  rmse: number;
+  cvRmse: number;
+  vif: Array<{ name: string; vif: number }>;
+  comparison: PublishedComparison;
+}
+
+export interface ResidualCorrelation {
+  distancesMm: number[];
+  n: number;
+  matrix: number[][];
+}
+
+export interface FittedModel {
+  predictors: Predictor[];
+  dropped: Array<{ name: string; reason: string }>;
+  folds: number;
+  seed: number;
+  distances: DistanceModel[];
+  skippedDistances: Array<{ distanceMm: number; reason: string }>;
+  residualCorrelation: ResidualCorrelation | null;
+  heatCount: number;
+}
+
+export interface FitOptions {
+  predictors?: readonly Predictor[];
+  distancesMm?: readonly number[];
+  folds?: number;
+  seed?: number;
+  /** Fewest heats at a distance for a fit (default max(20, 3 × number of coefficients)). */
+  minHeats?: number;
+  /** Labels for distances (band labels). */
+  label?: (mm: number) => string;
+}
+
+export const predictorValue = (c: { chemistry: Record<string, unknown>; grainSize: number | null }, name: Predictor): number | undefined =>
+  name === 'grainSize' ? (c.grainSize ?? undefined) : (c.chemistry[name] as number | undefined);
+
+export const minHeatsFor = (predictors: number) => Math.max(20, 3 * (predictors + 1));
+
+const rmse = (e: readonly number[]) => (e.length ? Math.sqrt(e.reduce((s, x) => s + x * x, 0) / e.length) : null);
+
+/** Fits the model on loaded curves (pure). */
+export function fitChemistryModel(curves: readonly HeatCurve[], options: FitOptions = {}): FittedModel {
+  const folds = options.folds ?? 5;
+  const seed = options.seed ?? 20240611;
+  const heats = groupByHeat(curves).map((g) => g[0]);
+  const asked = options.predictors ? [...options.predictors] : [...DEFAULT_PREDICTORS];
+  for (const p of asked) if (!PREDICTOR_NAMES.includes(p)) throw invalidInput(`unknown predictor ${p}; use element symbols or grainSize`);
+  const dropped: FittedModel['dropped'] = [];
+  let predictors = asked.filter((p) => {
+    const present = heats.filter((h) => predictorValue(h, p) !== undefined).length;
+    if (options.predictors || present >= 0.9 * heats.length) return true;
+    dropped.push({ name: p, reason: `reported for ${present} of ${heats.length} heats` });
+    return false;
+  });
+  const usable = heats.filter((h) => predictors.every((p) => predictorValue(h, p) !== undefined));
+  predictors = predictors.filter((p) => {
+    const vals = usable.map((h) => predictorValue(h, p)!);
+    if (vals.length && Math.max(...vals) - Math.min(...vals) > 1e-12) return true;
+    dropped.push({ name: p, reason: 'the same value on every heat: its effect cannot be estimated' });
+    return false;
+  });
+  if (predictors.length === 0) throw insufficientData('no predictor varies over the heats: nothing to fit');
+  const usableIds = new Set(usable.map((h) => h.heatId));
+  const byId = new Map(usable.map((h) => [h.heatId, h]));
+  const minHeats = options.minHeats ?? minHeatsFor(predictors.length);
+  const label = options.label ?? ((mm: number) => `${mm} mm`);
+  const distances = options.distancesMm ? [...options.distancesMm] : distancesOf(curves);
+  const published = new Map<number, PublishedCurveResult>(usable.map((h) => [h.heatId, publishedCurve(h.chemistry, h.grainSize, distances)]));
+
+  const fits: DistanceModel[] = [];
+  const skippedDistances: FittedModel['skippedDistances'] = [];
+  const residuals = new Map<number, Map<number, number>>();
+  for (const d of distances) {
+    const series = pointsAt(curves, d).filter((p) => usableIds.has(p.heatId));
+    if (series.length < minHeats) {
+      skippedDistances.push({ distanceMm: d, reason: `${series.length} heat(s) with full chemistry tested here; a fit needs ${minHeats}` });
+      continue;
+    }
+    const x = series.map((p) => predictors.map((name) => predictorValue(byId.get(p.heatId)!, name)!));
+    const y = series.map((p) => p.value);
+    let fit;
+    try {
+      fit = fitOls(x, y, { names: predictors, diagnostics: true });
+    } catch (error) {
+      if (error instanceof RankDeficientError) throw invalidInput(`at ${label(d)}: ${error.message}; leave one of them out`, { collinear: error.names });
+      throw error;
+    }
+    const cv = crossValidate({
+      y,
+      k: Math.min(folds, series.length),
+      seed,
+      fitPredict: (train, test) => {
+        const f = fitOls(train.map((i) => x[i]), train.map((i) => y[i]), { names: predictors });
+        return f.predict(test.map((i) => x[i])).map((p) => p.fit);
+      },
+    });
+    const compared: number[] = [];
+    const plantErr: number[] = [];
+    const pubErr: number[] = [];
+    const methods = new Set<string>();
+    let firstReason: string | null = null;
+    series.forEach((p, i) => {
+      const pub = published.get(p.heatId)!;
+      const v = publishedAt(pub, d);
+      if (!v) {
+        firstReason ??= pub.missing.find((m) => Math.abs(m.mm - d) <= 1e-6)?.reason ?? 'no published value';
+        return;
+      }
+      compared.push(p.heatId);
+      methods.add(v.method);
+      plantErr.push(y[i] - cv.predictions[i]);
+      pubErr.push(y[i] - v.hrc);
+    });
+    const resid = new Map<number, number>();
+    series.forEach((p, i) => resid.set(p.heatId, fit.residuals[i]));
+    residuals.set(d, resid);
+    fits.push({
+      distanceMm: d,
+      label: label(d),
+      n: series.length,
+      heatIds: series.map((p) => p.heatId),
+      terms: fit.terms,
+      coefficients: fit.coefficients.map((c) => ({ name: c.name, estimate: c.estimate, standardError: c.standardError, t: c.t, p: c.p })),
+      covariance: fit.covariance,
+      dfResidual: fit.dfResidual,
+      rSquared: fit.rSquared,
+      adjustedRSquared: fit.adjustedRSquared,
+      rmse: fit.sigma,
+      cvRmse: cv.rmse,
+      vif: fit.diagnostics?.vif ?? [],
+      comparison: {
+        heats: compared.length,
+        heatIds: compared,
+        methods: [...methods],
+        plantCvRmse: rmse(plantErr),
+        publishedRmse: rmse(pubErr),
+        publishedBias: pubErr.length ? pubErr.reduce((a, b) => a + b, 0) / pubErr.length : null,
+        notComparable: series.length - compared.length,
+        firstReason,
+      },
+    });
+  }
+  if (fits.length === 0) throw insufficientData('no distance has enough heats for a model', { skippedDistances });
+  return {
+    predictors,
+    dropped,
+    folds,
+    seed,
+    distances: fits,
+    skippedDistances,
+    residualCorrelation: residualCorrelation(fits.map((f) => f.distanceMm), residuals),
+    heatCount: new Set(fits.flatMap((f) => f.heatIds)).size,
+  };
+}
+
+/** Pearson correlation of the residuals between distances, over heats with a residual at every distance. */
+export function residualCorrelation(distancesMm: readonly number[], residuals: Map<number, Map<number, number>>): ResidualCorrelation | null {
+  if (distancesMm.length === 0) return null;
+  const first = residuals.get(distancesMm[0])!;
+  const complete = [...first.keys()].filter((id) => distancesMm.every((d) => residuals.get(d)!.has(id)));
+  if (complete.length < distancesMm.length + 2) return null;
+  const cols = distancesMm.map((d) => complete.map((id) => residuals.get(d)!.get(id)!));
+  const means = cols.map((c) => c.reduce((a, b) => a + b, 0) / c.length);
+  const cov = (a: number, b: number) => cols[a].reduce((s, v, i) => s + (v - means[a]) * (cols[b][i] - means[b]), 0);
+  const matrix = cols.map((_, a) => cols.map((__, b) => (a === b ? 1 : cov(a, b) / Math.sqrt(cov(a, a) * cov(b, b)))));
+  return { distancesMm: [...distancesMm], n: complete.length, matrix };
+}
+
+export interface FitRequest {
+  grade: string;
+  mill?: string;
+  from?: string;
+  to?: string;
+  source?: SeriesSource;
+  predictors?: Predictor[];
+  folds?: number;
+  seed?: number;
+  createdBy: string | null;
+}
+
+export type StoredModel = ModelRecord<Omit<FittedModel, 'residualCorrelation' | 'heatCount' | 'predictors'>, ResidualCorrelation>;
+
+/** Loads the history, fits, and stores the model as the next version. */
+export async function fitAndStoreModel(db: Db, request: FitRequest): Promise<StoredModel> {
+  const source = request.source ?? 'mill_certificate';
+  const curves = await loadSeriesCurves(db, { grade: request.grade, mill: request.mill, from: request.from, to: request.to, source });
+  if (curves.length === 0) throw insufficientData(`no ${request.grade} curves${request.mill ? ` from ${request.mill}` : ''} in the window`);
+  const band = await bandOn(db, request.grade, request.to ?? todayIso());
+  const fitted = fitChemistryModel(curves, { predictors: request.predictors, folds: request.folds, seed: request.seed, label: (mm) => labelFor(band, mm) });
+  const dates = curves.map((c) => c.castDate).sort();
+  const { residualCorrelation: rc, heatCount, predictors, ...fits } = fitted;
+  return (await insertModel(db, {
+    grade: request.grade,
+    mill: request.mill ?? null,
+    trainedFrom: request.from ?? dates[0],
+    trainedTo: request.to ?? dates[dates.length - 1],
+    source,
+    predictors,
+    fits,
+    residualCorrelation: rc,
+    heatCount,
+    createdBy: request.createdBy,
+  })) as StoredModel;
+}

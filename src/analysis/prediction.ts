@@ -1,0 +1,323 @@
+// Predicted end-quench curve for a chemistry and grain size, with prediction intervals and the
+// probability of meeting the band.
+//  - Plant model (chemistryModel.ts): at each distance ŷ = xᵀβ, predictive SD s = √(σ² + xᵀCx) with C the
+//    coefficient covariance, interval ŷ ± t(1 − α/2, ν)·s (Montgomery, Peck & Vining §3.5); the chance of
+//    a point meeting its limits is F_t((max − ŷ)/s) − F_t((min − ŷ)/s).
+//  - The curve is made non-increasing by PAVA (Barlow et al. 1972; src/stats/isotonic.ts), applied to the
+//    centre and to each interval bound separately; the raw values are kept beside them.
+//  - Whole band: P(every band point inside) under a multivariate normal with covariance D·R·D, D the
+//    predictive SDs and R the residual correlation between distances, by seeded Monte Carlo (xoshiro128**
+//    with Box–Muller normals, src/stats/random.ts) through the Cholesky factor; the Monte Carlo standard
+//    error √(p(1 − p)/N) is given. The normal stands in for the t here (ν is large for any usable model).
+//  - Published predictor (ASTM A255 calculation, else Just 1969) when the grade has no plant model: its
+//    error SD is the RMSE of observed − published on the grade's own history at that distance (when at
+//    least 5 heats), otherwise no interval is given.
+import { CholeskyDecomposition, Matrix } from 'ml-matrix';
+import type { Db } from '../db/connection.ts';
+import { getModel, latestModel } from '../db/models.ts';
+import { isotonicRegression } from '../stats/isotonic.ts';
+import { normalCdf, normalQuantile, tCdf, tQuantile } from '../stats/distributions.ts';
+import { createRng } from '../stats/random.ts';
+import type { Band } from '../hardenability/bands.ts';
+import type { Chemistry } from '../hardenability/types.ts';
+import { bandOn, bandSummary, labelFor, type BandSummary } from './bandOf.ts';
+import { invalidInput, notFound } from './errors.ts';
+import { minHeatsFor, predictorValue, DEFAULT_PREDICTORS, type Predictor, type StoredModel, type DistanceModel } from './chemistryModel.ts';
+import { publishedAt, publishedCurve } from './publishedPredictor.ts';
+import { distancesOf, groupByHeat, loadSeriesCurves, pointsAt, todayIso, type HeatCurve } from './seriesData.ts';
+
+export interface PredictionInput {
+  chemistry: Chemistry;
+  grainSize: number | null;
+}
+
+export interface PredictionOptions {
+  /** Interval level (default 0.95). */
+  level?: number;
+  /** Monte Carlo draws and seed for the whole-band probability (defaults 20000 and 20240611). */
+  draws?: number;
+  seed?: number;
+}
+
+export interface PredictedPointView {
+  distanceMm: number;
+  label: string;
+  hrc: number;
+  lower: number | null;
+  upper: number | null;
+  /** Before PAVA. */
+  raw: { hrc: number; lower: number | null; upper: number | null };
+  adjustedForMonotonicity: boolean;
+  /** Predictive standard deviation (null: unknown). */
+  sd: number | null;
+  minHrc: number | null;
+  maxHrc: number | null;
+  /** Probability of this point meeting its band limits (null: no limit here or no SD). */
+  probabilityInBand: number | null;
+  method: string;
+}
+
+export interface WholeBandProbability {
+  probability: number;
+  method: 'monte_carlo_multivariate_normal';
+  draws: number;
+  seed: number;
+  standardError: number;
+  distancesMm: number[];
+  /** Band points the prediction does not cover (left out of the probability). */
+  notCovered: number[];
+  correlation: 'residual_correlation_of_model' | 'assumed_independent';
+}
+
+export type AnsweredBy =
+  | { type: 'plant_model'; modelId: number; version: number; grade: string; mill: string | null; trainedFrom: string | null; trainedTo: string | null; heatCount: number }
+  | { type: 'published_predictor'; methods: string[]; reason: string };
+
+export interface CurvePrediction {
+  answeredBy: AnsweredBy;
+  level: number;
+  band: BandSummary | null;
+  points: PredictedPointView[];
+  wholeBand: WholeBandProbability | null;
+  notes: string[];
+}
+
+const clean = (x: number | null) => (x === null || !Number.isFinite(x) ? null : x);
+
+function limitAt(band: Band | null, mm: number) {
+  const p = band?.points.find((b) => Math.abs(b.mm - mm) <= 1e-6);
+  return { minHrc: p?.minHrc ?? null, maxHrc: p?.maxHrc ?? null };
+}
+
+/** Makes centre and bounds non-increasing with distance (PAVA on each), keeping the raw values. */
+export function monotonePoints(points: PredictedPointView[]): PredictedPointView[] {
+  const sorted = [...points].sort((a, b) => a.distanceMm - b.distanceMm);
+  if (sorted.length === 0) return sorted;
+  const iso = (v: number[]) => isotonicRegression(v, { direction: 'non-increasing' }).fitted;
+  const hrc = iso(sorted.map((p) => p.raw.hrc));
+  const withBounds = sorted.every((p) => p.raw.lower !== null && p.raw.upper !== null);
+  const lower = withBounds ? iso(sorted.map((p) => p.raw.lower!)) : null;
+  const upper = withBounds ? iso(sorted.map((p) => p.raw.upper!)) : null;
+  return sorted.map((p, i) => ({
+    ...p,
+    hrc: hrc[i],
+    lower: lower ? Math.min(lower[i], hrc[i]) : p.raw.lower,
+    upper: upper ? Math.max(upper[i], hrc[i]) : p.raw.upper,
+    adjustedForMonotonicity: Math.abs(hrc[i] - p.raw.hrc) > 1e-9,
+  }));
+}
+
+/**
+ * P(lower_j ≤ Y_j ≤ upper_j for all j), Y ~ N(mean, D·R·D), by seeded Monte Carlo through the Cholesky
+ * factor. Null limits are open. Pure.
+ */
+export function wholeBandProbability(
+  mean: readonly number[],
+  sd: readonly number[],
+  correlation: readonly (readonly number[])[],
+  limits: ReadonlyArray<{ min: number | null; max: number | null }>,
+  options: { draws?: number; seed?: number } = {},
+): { probability: number; standardError: number; draws: number; seed: number } {
+  const draws = options.draws ?? 20000;
+  const seed = options.seed ?? 20240611;
+  const p = mean.length;
+  if (p === 0) throw invalidInput('no band point to evaluate');
+  const cov = Array.from({ length: p }, (_, a) => Array.from({ length: p }, (_, b) => sd[a] * sd[b] * correlation[a][b]));
+  let chol = new CholeskyDecomposition(new Matrix(cov));
+  if (!chol.isPositiveDefinite()) {
+    // A correlation matrix estimated from finite data can be semidefinite: add a tiny ridge.
+    const eps = 1e-9 * Math.max(...sd.map((s) => s * s));
+    chol = new CholeskyDecomposition(new Matrix(cov.map((r, a) => r.map((v, b) => (a === b ? v + eps : v)))));
+  }
+  const L = chol.lowerTriangularMatrix.to2DArray();
+  const rng = createRng(seed);
+  const z = new Float64Array(p);
+  let inside = 0;
+  for (let n = 0; n < draws; n++) {
+    for (let j = 0; j < p; j++) z[j] = rng.normal();
+    let ok = true;
+    for (let a = 0; a < p && ok; a++) {
+      let y = mean[a];
+      const row = L[a];
+      for (let b = 0; b <= a; b++) y += row[b] * z[b];
+      const lim = limits[a];
+      if ((lim.min !== null && y < lim.min) || (lim.max !== null && y > lim.max)) ok = false;
+    }
+    if (ok) inside++;
+  }
+  const probability = inside / draws;
+  return { probability, standardError: Math.sqrt((probability * (1 - probability)) / draws), draws, seed };
+}
+
+/** The predictor row of a heat for a stored model's terms; throws when the chemistry lacks one. */
+function designRow(model: StoredModel, input: PredictionInput): number[] {
+  const missing = model.predictors.filter((p) => predictorValue({ chemistry: input.chemistry, grainSize: input.grainSize }, p as Predictor) === undefined);
+  if (missing.length) throw invalidInput(`the model needs ${missing.join(', ')}, which the request does not give`);
+  return [1, ...model.predictors.map((p) => predictorValue({ chemistry: input.chemistry, grainSize: input.grainSize }, p as Predictor)!)];
+}
+
+function pointFromFit(fit: DistanceModel, row: number[], level: number, band: Band | null): PredictedPointView {
+  const hrc = fit.coefficients.reduce((s, c, i) => s + c.estimate * row[i], 0);
+  let q = 0;
+  for (let a = 0; a < row.length; a++) for (let b = 0; b < row.length; b++) q += row[a] * fit.covariance[a][b] * row[b];
+  const sd = Math.sqrt(fit.rmse * fit.rmse + q);
+  const tq = tQuantile(1 - (1 - level) / 2, fit.dfResidual);
+  const { minHrc, maxHrc } = limitAt(band, fit.distanceMm);
+  const probabilityInBand =
+    minHrc === null && maxHrc === null
+      ? null
+      : (maxHrc === null ? 1 : tCdf((maxHrc - hrc) / sd, fit.dfResidual)) - (minHrc === null ? 0 : tCdf((minHrc - hrc) / sd, fit.dfResidual));
+  const lower = hrc - tq * sd;
+  const upper = hrc + tq * sd;
+  return {
+    distanceMm: fit.distanceMm,
+    label: labelFor(band, fit.distanceMm),
+    hrc,
+    lower,
+    upper,
+    raw: { hrc, lower, upper },
+    adjustedForMonotonicity: false,
+    sd,
+    minHrc,
+    maxHrc,
+    probabilityInBand,
+    method: 'plant model (OLS)',
+  };
+}
+
+function wholeBandFor(points: PredictedPointView[], band: Band | null, correlation: { distancesMm: number[]; matrix: number[][] } | null, options: PredictionOptions): WholeBandProbability | null {
+  if (!band) return null;
+  const covered = band.points.filter((b) => points.some((p) => Math.abs(p.distanceMm - b.mm) <= 1e-6 && p.sd !== null));
+  if (covered.length === 0) return null;
+  const pts = covered.map((b) => points.find((p) => Math.abs(p.distanceMm - b.mm) <= 1e-6)!);
+  const idx = correlation ? pts.map((p) => correlation.distancesMm.findIndex((d) => Math.abs(d - p.distanceMm) <= 1e-6)) : [];
+  const useCorrelation = correlation !== null && idx.every((i) => i >= 0);
+  const R = pts.map((_, a) => pts.map((__, b) => (a === b ? 1 : useCorrelation ? correlation!.matrix[idx[a]][idx[b]] : 0)));
+  const r = wholeBandProbability(
+    pts.map((p) => p.raw.hrc),
+    pts.map((p) => p.sd!),
+    R,
+    covered.map((b) => ({ min: b.minHrc ?? null, max: b.maxHrc ?? null })),
+    options,
+  );
+  return {
+    ...r,
+    method: 'monte_carlo_multivariate_normal',
+    distancesMm: pts.map((p) => p.distanceMm),
+    notCovered: band.points.filter((b) => !covered.includes(b)).map((b) => b.mm),
+    correlation: useCorrelation ? 'residual_correlation_of_model' : 'assumed_independent',
+  };
+}
+
+/** Prediction by a stored plant model (pure). */
+export function predictWithModel(model: StoredModel, input: PredictionInput, band: Band | null, options: PredictionOptions = {}): CurvePrediction {
+  const level = options.level ?? 0.95;
+  const row = designRow(model, input);
+  const points = monotonePoints(model.fits.distances.map((f) => pointFromFit(f, row, level, band)));
+  const notes: string[] = [];
+  if (points.some((p) => p.adjustedForMonotonicity)) notes.push('the fitted curve rose with distance somewhere; it was made non-increasing (PAVA)');
+  const wholeBand = wholeBandFor(points, band, model.residualCorrelation, options);
+  if (wholeBand?.notCovered.length) notes.push(`band points at ${wholeBand.notCovered.join(', ')} mm are not covered by the model and are left out of the whole-band probability`);
+  if (wholeBand?.correlation === 'assumed_independent') notes.push('no residual correlation on file for these distances: the whole-band probability treats them as independent');
+  return {
+    answeredBy: {
+      type: 'plant_model',
+      modelId: model.id,
+      version: model.version,
+      grade: model.grade,
+      mill: model.mill,
+      trainedFrom: model.trainedFrom,
+      trainedTo: model.trainedTo,
+      heatCount: model.heatCount,
+    },
+    level,
+    band: band ? bandSummary(band) : null,
+    points,
+    wholeBand,
+    notes,
+  };
+}
+
+/** Error of the published predictor on a history, per distance: n, RMSE and bias of observed − published. */
+export function publishedErrors(history: readonly HeatCurve[], distancesMm: readonly number[]): Map<number, { n: number; rmse: number; bias: number }> {
+  const out = new Map<number, { n: number; rmse: number; bias: number }>();
+  const heats = new Map(groupByHeat(history).map((g) => [g[0].heatId, g[0]]));
+  const curves = new Map([...heats.values()].map((h) => [h.heatId, publishedCurve(h.chemistry, h.grainSize, distancesMm)]));
+  for (const d of distancesMm) {
+    const errs: number[] = [];
+    for (const p of pointsAt(history, d)) {
+      const v = publishedAt(curves.get(p.heatId)!, d);
+      if (v) errs.push(p.value - v.hrc);
+    }
+    if (errs.length) out.set(d, { n: errs.length, rmse: Math.sqrt(errs.reduce((s, e) => s + e * e, 0) / errs.length), bias: errs.reduce((a, b) => a + b, 0) / errs.length });
+  }
+  return out;
+}
+
+/** Prediction by the published predictor (pure); errors from the grade's history when there is some. */
+export function predictWithPublished(
+  input: PredictionInput,
+  band: Band | null,
+  distancesMm: readonly number[],
+  errors: Map<number, { n: number; rmse: number; bias: number }>,
+  reason: string,
+  options: PredictionOptions = {},
+): CurvePrediction {
+  const level = options.level ?? 0.95;
+  const zq = normalQuantile(1 - (1 - level) / 2);
+  const pub = publishedCurve(input.chemistry, input.grainSize, distancesMm);
+  const notes = [reason, ...pub.warnings];
+  const raw: PredictedPointView[] = [];
+  for (const d of distancesMm) {
+    const v = publishedAt(pub, d);
+    if (!v) continue;
+    const e = [...errors].find(([k]) => Math.abs(k - d) <= 1e-6)?.[1];
+    const sd = e && e.n >= 5 ? e.rmse : null;
+    const { minHrc, maxHrc } = limitAt(band, d);
+    const lower = sd === null ? null : v.hrc - zq * sd;
+    const upper = sd === null ? null : v.hrc + zq * sd;
+    const probabilityInBand =
+      sd === null || (minHrc === null && maxHrc === null)
+        ? null
+        : (maxHrc === null ? 1 : normalCdf((maxHrc - v.hrc) / sd)) - (minHrc === null ? 0 : normalCdf((minHrc - v.hrc) / sd));
+    raw.push({ distanceMm: d, label: labelFor(band, d), hrc: v.hrc, lower, upper, raw: { hrc: v.hrc, lower, upper }, adjustedForMonotonicity: false, sd, minHrc, maxHrc, probabilityInBand, method: v.method });
+  }
+  for (const m of pub.missing) notes.push(`no published value at ${m.mm} mm: ${m.reason}`);
+  if (raw.some((p) => p.sd === null)) notes.push('where the grade has fewer than 5 heats with a published value, no interval or probability is given');
+  const points = monotonePoints(raw);
+  return {
+    answeredBy: { type: 'published_predictor', methods: [...new Set(points.map((p) => p.method))], reason },
+    level,
+    band: band ? bandSummary(band) : null,
+    points,
+    wholeBand: null,
+    notes: [...notes, 'no whole-band probability without a plant model (the correlation between distances is unknown)'],
+  };
+}
+
+export interface PredictRequest extends PredictionInput, PredictionOptions {
+  grade: string;
+  mill?: string;
+  /** Use this model instead of the newest. */
+  modelId?: number;
+  /** Band date (default today). */
+  onDate?: string;
+}
+
+/** Predicts with the newest model of the mill (else of the grade), else the published predictor. */
+export async function predictCurve(db: Db, request: PredictRequest): Promise<CurvePrediction> {
+  const band = await bandOn(db, request.grade, request.onDate ?? todayIso());
+  let model: StoredModel | null = null;
+  if (request.modelId !== undefined) {
+    model = (await getModel(db, request.modelId)) as StoredModel | null;
+    if (!model || model.grade !== request.grade) throw notFound(`model ${request.modelId} of grade ${request.grade} is not on file`);
+  } else {
+    model = (request.mill ? ((await latestModel(db, request.grade, request.mill)) as StoredModel | null) : null) ?? ((await latestModel(db, request.grade, null)) as StoredModel | null);
+  }
+  if (model) return predictWithModel(model, request, band, request);
+  const history = await loadSeriesCurves(db, { grade: request.grade, mill: request.mill });
+  const heats = new Set(history.map((c) => c.heatId)).size;
+  const distances = [...new Set([...(band?.points.map((p) => p.mm) ?? []), ...distancesOf(history)])].sort((a, b) => a - b);
+  const reason = `no plant model is on file for ${request.grade}${request.mill ? ` (mill ${request.mill} or grade-wide)` : ''}; the history holds ${heats} heat(s) and a model needs at least ${minHeatsFor(DEFAULT_PREDICTORS.length)}: the published predictor answers`;
+  return predictWithPublished(request, band, distances, publishedErrors(history, distances), reason, request);
+}
