@@ -9,6 +9,7 @@ import { createLogger } from './logger.ts';
 import { startService } from './server.ts';
 import { runImport, type ImportFormat, type ImportReport } from './ingest/importPipeline.ts';
 import { loadMillLayout } from './ingest/millLayout.ts';
+import { register as registerDemoCommand } from './cliCommands/demo.ts';
 import { register as registerTokenCommands } from './cliCommands/token.ts';
 
 const program = new Command();
@@ -107,6 +108,8 @@ export function formatReport(report: ImportReport): string {
 }
 
 registerTokenCommands(program);
+
+registerDemoCommand(program);
 
 program.parseAsync(process.argv).catch((error: Error) => {
   const logger = createLogger('error');
