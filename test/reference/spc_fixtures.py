@@ -68,6 +68,10 @@ ad_sets = {
     "uniform_n30": rng.uniform(20.0, 30.0, 30),
     "exponential_n100": rng.exponential(2.0, 100),
     "t3_n60": rng.standard_t(3, 60),
+    # Blom normal scores: A*² < 0.2 (first branch of the p-value formula)
+    "normal_scores_n40": stats.norm.ppf((np.arange(1, 41) - 0.375) / 40.25) * 2.0 + 41.0,
+    # Gross contamination: A*² > 13 (p reported as 0)
+    "contaminated_n100": np.concatenate([rng.normal(40.0, 1.0, 85), np.full(15, 80.0)]),
 }
 ad = []
 for name, x in ad_sets.items():
