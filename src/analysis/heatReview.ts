@@ -1,0 +1,168 @@
+// The heat sheet behind GET /heats/{id}/review: band conformance of every test (band in force on the cast
+// date; src/hardenability/conformance.ts), the certificate checks with their evidence
+// (src/hardenability/checks), the predicted curve beside the reported one (prediction.ts), and the chart
+// signals this heat raised on its mill's series (individuals with Nelson rules, EWMA, CUSUM; controlCharts.ts)
+// over the two years of history up to and including it. Copies are looked for among the same mill's
+// heats of the grade cast within a year either side.
+import type { Db } from '../db/connection.ts';
+import { getHeat, type HeatDetail } from '../db/heats.ts';
+import { findGrade } from '../db/referenceData.ts';
+import { activeBaseline } from '../db/baselines.ts';
+import { heatConformance, testConformance, type TestConformance } from '../hardenability/conformance.ts';
+import { checkCurveNonIncreasing } from '../hardenability/checks/curveShape.ts';
+import { checkMartensiteCeiling } from '../hardenability/checks/martensiteCeiling.ts';
+import { checkChemistryLimits, type ChemistryLimits } from '../hardenability/checks/chemistryLimits.ts';
+import { checkAgainstPrediction } from '../hardenability/checks/prediction.ts';
+import { findPossibleCopies } from '../hardenability/checks/copies.ts';
+import type { CheckEvidence, Chemistry, EndQuenchTest, TestSource } from '../hardenability/types.ts';
+import { bandOn, bandSummary, labelFor, type BandSummary } from './bandOf.ts';
+import { baselineReference, phaseOneReference, univariateChart, type ChartKind, type LimitsOrigin } from './controlCharts.ts';
+import { notFound } from './errors.ts';
+import { predictCurve, type CurvePrediction } from './prediction.ts';
+import { groupByHeat, loadSeriesCurves, pointsAt } from './seriesData.ts';
+
+export interface ReviewedTest {
+  testId: number;
+  source: string;
+  lotNumber: string | null;
+  certificateRevision: number | null;
+  current: boolean;
+  readings: Array<{ distanceMm: number; label: string; hrc: number }>;
+  conformance: TestConformance | null;
+}
+
+export interface HeatSignal {
+  kind: Exclude<ChartKind, 't2'>;
+  distanceMm: number;
+  label: string;
+  rule: string;
+  description: string;
+  limitsFrom: LimitsOrigin['type'];
+}
+
+export interface HeatReview {
+  heat: Pick<HeatDetail, 'id' | 'mill' | 'grade' | 'heatNumber' | 'castDate' | 'revision' | 'certificateNumber' | 'grainSize' | 'chemistry'>;
+  band: BandSummary | null;
+  verdict: { verdict: string; explanation: string; disagreement: boolean } | null;
+  tests: ReviewedTest[];
+  checks: Array<CheckEvidence & { testId?: number }>;
+  prediction: CurvePrediction | null;
+  predictionProblem: string | null;
+  signals: HeatSignal[];
+  notes: string[];
+}
+
+export function addDays(iso: string, days: number): string {
+  const d = new Date(`${iso}T00:00:00Z`);
+  d.setUTCDate(d.getUTCDate() + days);
+  return d.toISOString().slice(0, 10);
+}
+
+const toTest = (t: HeatDetail['tests'][number], castDate: string): EndQuenchTest => ({
+  id: String(t.id),
+  source: t.source as TestSource,
+  testDate: t.testDate ?? castDate,
+  readings: t.readings.map((r) => ({ mm: r.distanceMm, hrc: r.hrc, label: r.label })),
+});
+
+export async function heatReview(db: Db, heatId: number): Promise<HeatReview> {
+  const heat = await getHeat(db, heatId);
+  if (!heat) throw notFound(`heat ${heatId} is not on file`);
+  const notes: string[] = [];
+  const band = await bandOn(db, heat.grade, heat.castDate);
+  if (!band) notes.push(`no band of ${heat.grade} was in force on the cast date ${heat.castDate}: conformance not judged`);
+  const current = heat.tests.filter((t) => t.current && t.readings.length);
+  const tests: ReviewedTest[] = heat.tests.map((t) => ({
+    testId: t.id,
+    source: t.source,
+    lotNumber: t.lotNumber,
+    certificateRevision: t.certificateRevision,
+    current: t.current,
+    readings: t.readings,
+    conformance: band && t.readings.length ? testConformance(toTest(t, heat.castDate), band) : null,
+  }));
+  const verdict = band && current.length ? heatConformance(current.map((t) => toTest(t, heat.castDate)), band) : null;
+
+  const chemistry = heat.chemistry as Chemistry;
+  const checks: HeatReview['checks'] = [];
+  for (const t of current) {
+    const readings = t.readings.map((r) => ({ mm: r.distanceMm, hrc: r.hrc }));
+    checks.push({ ...checkCurveNonIncreasing(readings), testId: t.id });
+    if (chemistry.C !== undefined) checks.push({ ...checkMartensiteCeiling(readings, chemistry.C), testId: t.id });
+  }
+  const grade = await findGrade(db, heat.grade);
+  if (grade && grade.chemistryLimits.length) {
+    const limits: ChemistryLimits = Object.fromEntries(
+      grade.chemistryLimits.map((l) => [l.element, { ...(l.min === null ? {} : { min: l.min }), ...(l.max === null ? {} : { max: l.max }) }]),
+    );
+    checks.push(checkChemistryLimits(chemistry, limits));
+  }
+
+  let prediction: CurvePrediction | null = null;
+  let predictionProblem: string | null = null;
+  try {
+    prediction = await predictCurve(db, { grade: heat.grade, mill: heat.mill, chemistry, grainSize: heat.grainSize, onDate: heat.castDate });
+    const mean = prediction.points.filter((p) => p.sd !== null).map((p) => ({ mm: p.distanceMm, mean: p.hrc, sd: p.sd! }));
+    const millTest = current.find((t) => t.source === 'mill_certificate') ?? current[0];
+    if (millTest && mean.length) checks.push({ ...checkAgainstPrediction(millTest.readings.map((r) => ({ mm: r.distanceMm, hrc: r.hrc })), mean), testId: millTest.id });
+  } catch (error) {
+    predictionProblem = (error as Error).message;
+  }
+
+  const neighbours = await loadSeriesCurves(db, { grade: heat.grade, mill: heat.mill, from: addDays(heat.castDate, -365), to: addDays(heat.castDate, 365), source: 'mill_certificate' });
+  const millTest = current.find((t) => t.source === 'mill_certificate');
+  checks.push(
+    findPossibleCopies(
+      { heatId: String(heat.id), millId: heat.mill, readings: millTest?.readings.map((r) => ({ mm: r.distanceMm, hrc: r.hrc })), chemistry },
+      groupByHeat(neighbours).map((g) => ({ heatId: String(g[0].heatId), millId: g[0].mill, readings: [...g[0].readings].map(([mm, hrc]) => ({ mm, hrc })), chemistry: g[0].chemistry as Chemistry })),
+    ),
+  );
+
+  const signals: HeatSignal[] = [];
+  const history = await loadSeriesCurves(db, { grade: heat.grade, mill: heat.mill, from: addDays(heat.castDate, -730), to: heat.castDate, source: 'both' });
+  const distances = band?.points.map((p) => p.mm) ?? [];
+  for (const d of distances) {
+    const series = pointsAt(history, d);
+    const index = series.findIndex((p) => p.heatId === heat.id);
+    if (index < 0) continue;
+    const stored = await activeBaseline(db, { grade: heat.grade, mill: heat.mill, source: 'both', distanceMm: d }).then(
+      async (b) => b ?? (await activeBaseline(db, { grade: heat.grade, mill: heat.mill, source: 'mill_certificate', distanceMm: d })),
+    );
+    let reference;
+    try {
+      reference = stored ? baselineReference(stored) : phaseOneReference(series, { from: addDays(heat.castDate, -730), to: heat.castDate });
+    } catch {
+      continue;
+    }
+    const meta = { grade: heat.grade, mill: heat.mill, distanceMm: d, label: labelFor(band, d), source: 'both' as const };
+    for (const kind of ['individuals', 'ewma', 'cusum'] as const) {
+      const chart = univariateChart(kind, series, reference, meta);
+      for (const s of chart.signals) {
+        if (s.points.includes(index)) signals.push({ kind, distanceMm: d, label: meta.label, rule: s.rule, description: s.description, limitsFrom: reference.origin.type });
+      }
+    }
+  }
+  if (distances.length === 0) notes.push('no band distances: chart signals not evaluated');
+
+  return {
+    heat: {
+      id: heat.id,
+      mill: heat.mill,
+      grade: heat.grade,
+      heatNumber: heat.heatNumber,
+      castDate: heat.castDate,
+      revision: heat.revision,
+      certificateNumber: heat.certificateNumber,
+      grainSize: heat.grainSize,
+      chemistry: heat.chemistry,
+    },
+    band: band ? bandSummary(band) : null,
+    verdict: verdict ? { verdict: verdict.verdict, explanation: verdict.explanation, disagreement: verdict.disagreement } : null,
+    tests,
+    checks,
+    prediction,
+    predictionProblem,
+    signals,
+    notes,
+  };
+}

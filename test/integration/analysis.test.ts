@@ -1,0 +1,207 @@
+// The analysis layer on a real database (PGlite by default; PostgreSQL with TEST_DATABASE_URL), over
+// synthetic histories generated from a known model and imported through the import pipeline.
+import { afterAll, beforeAll, describe, expect, test } from 'vitest';
+import { createTestDatabase, type TestDatabase } from '../helpers/testDatabase.ts';
+import { addBandVersion } from '../../src/db/referenceData.ts';
+import { capabilityStudy } from '../../src/analysis/capabilityStudy.ts';
+import { controlChart, univariateChart, type UnivariateReference } from '../../src/analysis/controlCharts.ts';
+import { freezeBaselines } from '../../src/analysis/baselines.ts';
+import { bandTrial } from '../../src/analysis/bandTrial.ts';
+import { fitAndStoreModel } from '../../src/analysis/chemistryModel.ts';
+import { predictWithModel, wholeBandProbability } from '../../src/analysis/prediction.ts';
+import { loadSeriesCurves, pointsAt } from '../../src/analysis/seriesData.ts';
+import { predictA255Curve } from '../../src/hardenability/astmA255.ts';
+import { normalCdf } from '../../src/stats/distributions.ts';
+import { createRng } from '../../src/stats/random.ts';
+import { BAND_8620H, DISTANCES_MM, drawHeat, importCertificates, syntheticHistory, TRUE_SLOPES, TRUE_SIGMA } from '../fixtures/analysisHistory.ts';
+
+let db: TestDatabase;
+const millA = syntheticHistory({ seed: 11, mill: 'ANVIL', count: 150, start: '2021-01-04', prefix: 'A' });
+const millB = syntheticHistory({ seed: 12, mill: 'BRAMLEY', count: 110, start: '2021-01-05', prefix: 'B' });
+// Mill CORRAN: a planted upward shift of 2 marginal SDs at every distance from heat 61 on (index 60).
+const marginalSd9 = Math.sqrt(
+  (60 * 0.025) ** 2 / 3 + (15 * 0.12) ** 2 / 3 + (5 * 0.08) ** 2 / 3 + (6 * 0.15) ** 2 / 3 + (16 * 0.1) ** 2 / 3 + (28 * 0.04) ** 2 / 3 + 0.8 ** 2 * 0.9 + TRUE_SIGMA ** 2,
+);
+const SHIFT_AT = 60;
+const millC = syntheticHistory({ seed: 13, mill: 'CORRAN', count: 90, start: '2022-01-03', prefix: 'C', shift: { from: SHIFT_AT, hrc: () => 2 * marginalSd9 } });
+
+beforeAll(async () => {
+  db = await createTestDatabase();
+  await importCertificates(db.db, [...millA.certificates, ...millB.certificates, ...millC.certificates]);
+  await addBandVersion(db.db, '8620H', {
+    effectiveFrom: '2020-01-01',
+    status: 'active',
+    kind: 'standard',
+    points: BAND_8620H.map((p) => ({ distanceMm: p.at, label: `${p.at} mm`, minHrc: p.min, maxHrc: p.max })),
+  });
+}, 300_000);
+afterAll(async () => db?.close());
+
+const std = (v: number[]) => {
+  const m = v.reduce((a, b) => a + b, 0) / v.length;
+  return { m, s: Math.sqrt(v.reduce((a, b) => a + (b - m) ** 2, 0) / (v.length - 1)) };
+};
+
+describe('capability', () => {
+  test('per band distance, with the band limits; per mill when no mill is asked for', async () => {
+    const one = await capabilityStudy(db.db, { grade: '8620H', mill: 'ANVIL' });
+    expect(one.distances.map((d) => d.distanceMm)).toEqual(DISTANCES_MM);
+    const at5 = one.distances[2];
+    expect([at5.lsl, at5.usl, at5.n]).toEqual([31, 43, 150]);
+    // Ppk = min(USL − x̄, x̄ − LSL)/3s with the overall n − 1 SD (ISO 22514-2; NIST e-Handbook §6.1.6).
+    const { m, s } = std(millA.heats.map((h) => h.hrc[2]));
+    expect(at5.result!.ppk).toBeCloseTo(Math.min(43 - m, m - 31) / (3 * s), 10);
+    // One-sided point (max only at 11 mm): Cp is not defined, Ppk = Ppu (ISO 22514-2).
+    expect(one.distances[5].result!.cp).toBeNull();
+    const all = await capabilityStudy(db.db, { grade: '8620H' });
+    expect(all.perMill!.map((p) => [p.mill, p.heats])).toEqual([['ANVIL', 150], ['BRAMLEY', 110], ['CORRAN', 90]]);
+    expect(all.distances[0].n).toBe(350);
+  });
+});
+
+// Siegmund's approximation to the ARL of a one-sided tabular CUSUM: ARL = (e^{−2Δb} + 2Δb − 1)/(2Δ²),
+// Δ = δ − k, b = h + 1.166; two-sided 1/ARL = 1/ARL⁺ + 1/ARL⁻ (Siegmund 1985, Sequential Analysis,
+// Springer; as given in Montgomery, Introduction to Statistical Quality Control, §9.1.3).
+function siegmundArl(delta: number, k: number, h: number): number {
+  const one = (d: number) => {
+    const b = h + 1.166;
+    return Math.abs(d) < 1e-12 ? b * b : (Math.exp(-2 * d * b) + 2 * d * b - 1) / (2 * d * d);
+  };
+  return 1 / (1 / one(delta - k) + 1 / one(-delta - k));
+}
+
+describe('CUSUM detects a planted shift within the run length theory gives', () => {
+  const reference: UnivariateReference = {
+    frozen: { kind: 'individuals-mr', center: 0, sigma: 1, L: 3, ucl: 3, lcl: -3, mrCenter: 1.128, mrUcl: 3.686, baselineN: 0, usedN: 0, excluded: [], iterations: 1, converged: true, stillFlagged: [], rules: [1] },
+    origin: { type: 'phase_one_on_window', window: { from: null, to: null }, excludedHeats: [], converged: true },
+    baselineWindow: null,
+  };
+  test.each([1, 2])('mean run length at a %s-sigma shift matches Siegmund (k = 0.5, h = 5)', (delta) => {
+    const rng = createRng(4000 + delta);
+    const reps = 2000;
+    let total = 0;
+    for (let r = 0; r < reps; r++) {
+      const series = Array.from({ length: 80 }, (_, i) => ({ heatId: i, heatNumber: `H${i}`, mill: 'M', castDate: '2024-01-01', value: delta + rng.normal() }));
+      const chart = univariateChart('cusum', series, reference, { grade: 'G', mill: 'M', distanceMm: 9, label: null, source: 'mill_certificate' });
+      const first = Math.min(...chart.signals.flatMap((s) => s.points), 79);
+      total += first + 1;
+    }
+    const arl = siegmundArl(delta, 0.5, 5);
+    // Siegmund: 10.34 at δ = 1 (Montgomery's Table 9.3, from memory: 10.4) and 3.89 at δ = 2 (table 4.01).
+    expect(total / reps).toBeGreaterThan(arl * 0.95);
+    expect(total / reps).toBeLessThan(arl * 1.08);
+  });
+
+  test('the imported series with a 2-SD shift: no signal before, a signal within twice the ARL after', async () => {
+    const frozen = await freezeBaselines(db.db, { grade: '8620H', mill: 'CORRAN', from: '2022-01-01', to: '2022-04-30', reason: 'stable start', createdBy: 'test', distancesMm: [9] });
+    expect(frozen.baselines).toHaveLength(1);
+    const chart = await controlChart(db.db, { kind: 'cusum', grade: '8620H', mill: 'CORRAN', distanceMm: 9 });
+    expect(chart.limitsFrom.type).toBe('frozen_baseline');
+    const first = Math.min(...chart.signals.flatMap((s) => s.points));
+    expect(first).toBeGreaterThanOrEqual(SHIFT_AT);
+    const delta = (2 * marginalSd9) / chart.sigma!;
+    const runLength = first - SHIFT_AT + 1;
+    expect(runLength).toBeLessThanOrEqual(Math.ceil(2 * siegmundArl(delta, 0.5, 5)));
+    expect(chart.signals.find((s) => s.points.includes(first))!.rule).toBe('cusum_upper');
+  });
+});
+
+describe('band trial', () => {
+  test("counts equal a direct count over the same heats, and the current band's too", async () => {
+    const proposed = BAND_8620H.map((p) => ({ distanceMm: p.at, label: `${p.at} mm`, minHrc: p.at === 9 ? 26 : p.min, maxHrc: p.at === 5 ? 41 : p.max }));
+    const trial = await bandTrial(db.db, { grade: '8620H', points: proposed, from: '2021-01-01', to: '2022-12-31' });
+    const curves = await loadSeriesCurves(db.db, { grade: '8620H', from: '2021-01-01', to: '2022-12-31' });
+    for (const mill of trial.mills) {
+      const own = curves.filter((c) => c.mill === mill.mill);
+      const direct = (limits: typeof proposed) =>
+        own.filter((c) => limits.some((p) => {
+          const v = c.readings.get(p.distanceMm)!;
+          return (p.minHrc !== null && v < p.minHrc) || (p.maxHrc !== null && v > p.maxHrc);
+        })).map((c) => c.heatNumber);
+      expect(mill.proposed.failing.map((f) => f.heatNumber).sort()).toEqual(direct(proposed).sort());
+      expect(mill.proposed.heats).toBe(own.length);
+      const current = BAND_8620H.map((p) => ({ distanceMm: p.at, label: '', minHrc: p.min, maxHrc: p.max }));
+      expect(mill.current!.failingCount).toBe(direct(current).length);
+      expect(mill.proposed.failingCount).toBeGreaterThanOrEqual(mill.current!.failingCount);
+      // The suggested band is held by at least the chosen share, counted directly.
+      const s = mill.suggestion!;
+      const held = own.filter((c) => s.points.every((p) => {
+        const v = c.readings.get(p.distanceMm)!;
+        return (p.minHrc === null || v >= p.minHrc) && (p.maxHrc === null || v <= p.maxHrc);
+      })).length;
+      expect(held / own.length).toBeCloseTo(s.heldShare, 12);
+      expect(s.heldShare).toBeGreaterThanOrEqual(0.95);
+    }
+    expect(trial.total.proposed.failingCount).toBe(trial.mills.reduce((a, m) => a + m.proposed.failingCount, 0));
+  });
+});
+
+describe('chemistry model and prediction', () => {
+  let model: Awaited<ReturnType<typeof fitAndStoreModel>>;
+  beforeAll(async () => {
+    model = await fitAndStoreModel(db.db, { grade: '8620H', from: '2021-01-01', to: '2021-12-31', createdBy: 'test' });
+  });
+
+  test('the published predictor is scored on the same heats as the plant model', async () => {
+    expect(model.version).toBe(1);
+    expect(model.predictors).toEqual(['C', 'Mn', 'Si', 'Ni', 'Cr', 'Mo', 'grainSize']);
+    const curves = await loadSeriesCurves(db.db, { grade: '8620H', from: '2021-01-01', to: '2021-12-31' });
+    const heats = new Map(curves.map((c) => [c.heatId, c]));
+    for (const fit of model.fits.distances) {
+      expect(fit.comparison.heatIds).toEqual(fit.heatIds);
+      // Recomputed here from the ASTM A255 calculation (the published predictor at these distances).
+      const errors = fit.comparison.heatIds.map((id) => {
+        const h = heats.get(id)!;
+        const published = predictA255Curve(h.chemistry, { distancesMm: [fit.distanceMm], grainSize: h.grainSize! }).points[0].hrc;
+        return h.readings.get(fit.distanceMm)! - published;
+      });
+      expect(fit.comparison.publishedRmse).toBeCloseTo(Math.sqrt(errors.reduce((s, e) => s + e * e, 0) / errors.length), 10);
+      // The known model is linear in these terms with σ = 1.2 HRC (plus 0.1 HRC rounding).
+      expect(fit.rmse).toBeGreaterThan(1.0);
+      expect(fit.rmse).toBeLessThan(1.45);
+      expect(fit.cvRmse).toBeGreaterThan(fit.rmse * 0.98);
+    }
+    // True slope of Mo at 7 mm is 30 HRC per wt%: inside the fitted estimate ± 3 SE.
+    const at7 = model.fits.distances.find((f) => f.distanceMm === 7)!.coefficients.find((c) => c.name === 'Mo')!;
+    expect(Math.abs(at7.estimate - TRUE_SLOPES.Mo[3])).toBeLessThan(3 * at7.standardError);
+  });
+
+  test('95 % prediction intervals cover about 95 % of held-out heats; whole-band probability is calibrated', async () => {
+    const rng = createRng(777);
+    const band = { grade: '8620H', version: 1, effectiveFrom: '2020-01-01', status: 'active' as const, kind: 'standard' as const, points: BAND_8620H.map((p) => ({ mm: p.at, ...(p.min === null ? {} : { minHrc: p.min }), maxHrc: p.max })) };
+    let covered = 0;
+    let total = 0;
+    let predictedInBand = 0;
+    let observedInBand = 0;
+    const heldOut = 300;
+    for (let i = 0; i < heldOut; i++) {
+      const heat = drawHeat(rng);
+      const p = predictWithModel(model, { chemistry: heat.x, grainSize: heat.x.grainSize }, band, { draws: 4000, seed: i + 1 });
+      p.points.forEach((pt) => {
+        const j = DISTANCES_MM.indexOf(pt.distanceMm);
+        total++;
+        if (heat.hrc[j] >= pt.lower! && heat.hrc[j] <= pt.upper!) covered++;
+      });
+      predictedInBand += p.wholeBand!.probability;
+      if (BAND_8620H.every((b, j) => (b.min === null || heat.hrc[j] >= b.min) && heat.hrc[j] <= b.max)) observedInBand++;
+    }
+    const coverage = covered / total;
+    console.info(`measured coverage of 95 % prediction intervals on ${heldOut} held-out heats x 8 distances: ${(coverage * 100).toFixed(2)} %`);
+    expect(coverage).toBeGreaterThan(0.93);
+    expect(coverage).toBeLessThan(0.97);
+    expect(Math.abs(predictedInBand / heldOut - observedInBand / heldOut)).toBeLessThan(0.04);
+  });
+
+  test('whole-band Monte Carlo: independent points give the product of normal probabilities; identical ones the single one', () => {
+    const mean = [40, 30, 25];
+    const sd = [2, 1.5, 1];
+    const limits = [{ min: 37, max: 43 }, { min: 28, max: null }, { min: null, max: 26 }];
+    const exact = normalCdf(1.5) - normalCdf(-1.5);
+    const product = exact * (1 - normalCdf(-2 / 1.5)) * normalCdf(1);
+    const indep = wholeBandProbability(mean, sd, [[1, 0, 0], [0, 1, 0], [0, 0, 1]], limits, { draws: 40000, seed: 5 });
+    // Φ from @stdlib; independence makes the joint probability the product (definition of independence).
+    expect(Math.abs(indep.probability - product)).toBeLessThan(4 * indep.standardError);
+    const same = wholeBandProbability([0, 0], [1, 1], [[1, 1], [1, 1]], [{ min: -1, max: 1 }, { min: -1, max: 1 }], { draws: 40000, seed: 6 });
+    expect(Math.abs(same.probability - (normalCdf(1) - normalCdf(-1)))).toBeLessThan(4 * same.standardError);
+  });
+});
