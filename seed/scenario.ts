@@ -104,6 +104,9 @@ export interface PlantedStories {
     effectiveFrom: string;
     comfortableMill: string;
     strugglingMill: string;
+    /** What the story is meant to show: shares of each mill's certificates inside the proposal. */
+    comfortableShareAtLeast: number;
+    strugglingShareAtMost: number;
   };
 }
 
@@ -306,6 +309,8 @@ export const SCENARIO: Scenario = {
       effectiveFrom: '2027-01-01',
       comfortableMill: 'QUELLMARK',
       strugglingMill: 'VARNHOLT',
+      comfortableShareAtLeast: 0.95,
+      strugglingShareAtMost: 0.8,
     },
   },
 };
