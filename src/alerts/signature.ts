@@ -15,11 +15,15 @@ export function generateWebhookSecret(): string {
   return 'eqwh_' + randomBytes(32).toString('base64url');
 }
 
+/** HMAC-SHA256 of the parts, concatenated, as lower-case hex. */
+export function hmacSha256Hex(key: string | Uint8Array, ...parts: Array<string | Uint8Array>): string {
+  const mac = createHmac('sha256', key);
+  for (const part of parts) mac.update(part);
+  return mac.digest('hex');
+}
+
 export function signatureOf(secret: string, timestamp: number, body: string | Uint8Array): string {
-  const mac = createHmac('sha256', secret);
-  mac.update(`${timestamp}.`, 'utf8');
-  mac.update(body);
-  return `${SIGNATURE_SCHEME}=${mac.digest('hex')}`;
+  return `${SIGNATURE_SCHEME}=${hmacSha256Hex(secret, `${timestamp}.`, body)}`;
 }
 
 /** The two headers to send with a body. */
