@@ -9,8 +9,8 @@ import { createLogger } from './logger.ts';
 import { startService } from './server.ts';
 import { runImport, type ImportFormat, type ImportReport } from './ingest/importPipeline.ts';
 import { loadMillLayout } from './ingest/millLayout.ts';
-import { register as registerDemoCommand } from './cliCommands/demo.ts';
 import { register as registerTokenCommands } from './cliCommands/token.ts';
+import { register as registerDemoCommand } from './cliCommands/demo.ts';
 
 const program = new Command();
 program.name('endquench').description('Hardenability records of bar steel from mills: ingest, analysis, alerts.');
@@ -99,7 +99,7 @@ export function formatReport(report: ImportReport): string {
     lines.push(`  Problems (${problems.length}):`);
     for (const p of problems.slice(0, 50)) {
       const where = [p.row !== undefined ? `row ${p.row}` : null, p.column ? `column "${p.column}"` : null].filter(Boolean).join(', ');
-      lines.push(`  - ${where ? `${where}: ` : ''}${p.message}`);
+      lines.push(`  - ${where && !p.message.startsWith('row ') ? `${where}: ` : ''}${p.message}`);
     }
     if (problems.length > 50) lines.push(`  ... and ${problems.length - 50} more (use --json for all).`);
   }
@@ -108,7 +108,6 @@ export function formatReport(report: ImportReport): string {
 }
 
 registerTokenCommands(program);
-
 registerDemoCommand(program);
 
 program.parseAsync(process.argv).catch((error: Error) => {
