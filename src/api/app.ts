@@ -10,6 +10,7 @@ import { ApiError, errorResponse, problemsOf } from './errors.ts';
 import type { AppEnv } from './context.ts';
 import { catalogRoutes } from './routes/catalog.ts';
 import { ingestRoutes } from './routes/ingest.ts';
+import { analysisRoutes } from './routes/analysis.ts';
 import { alertRoutes } from './routes/alerts.ts';
 import { webhookRoutes } from './routes/webhooks.ts';
 import { accessControl, type AfterWriteHook } from '../auth/middleware.ts';
@@ -51,6 +52,7 @@ export function createApp({ database, logger, version = '0.1.0', access = {} }: 
 
   catalogRoutes(app, database.db);
   ingestRoutes(app, database.db);
+  analysisRoutes(app, database.db);
   alertRoutes(app, database.db);
   webhookRoutes(app, database.db);
 
