@@ -12,6 +12,8 @@ const schema = z.object({
   ENDQUENCH_ALLOW_OPEN: z.enum(['0', '1', 'true', 'false']).default('0'),
   /** Webhook dispatcher: off to run it elsewhere; attempts before dead; pause between rounds; answer timeout; first back-off. */
   ENDQUENCH_WEBHOOKS: z.enum(['on', 'off']).default('on'),
+  /** Load the invented demo plant when the embedded database is empty (auto), or start empty (off). */
+  ENDQUENCH_DEMO: z.enum(['auto', 'off']).default('auto'),
   ENDQUENCH_WEBHOOK_MAX_ATTEMPTS: z.coerce.number().int().min(1).max(100).default(8),
   ENDQUENCH_WEBHOOK_INTERVAL_MS: z.coerce.number().int().min(50).default(2000),
   ENDQUENCH_WEBHOOK_TIMEOUT_MS: z.coerce.number().int().min(100).default(10_000),
@@ -26,6 +28,8 @@ export interface Config {
   logLevel: z.infer<typeof schema>['LOG_LEVEL'];
   /** See ENDQUENCH_ALLOW_OPEN. */
   allowOpen?: boolean;
+  /** See ENDQUENCH_DEMO. */
+  demo?: 'auto' | 'off';
   /** Webhook dispatcher settings; absent means the defaults of createDispatcher. */
   webhooks?: { enabled: boolean; maxAttempts: number; intervalMs: number; timeoutMs: number; baseDelayMs: number };
 }
@@ -47,6 +51,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     dataDir: resolve(c.ENDQUENCH_DATA_DIR),
     logLevel: c.LOG_LEVEL,
     allowOpen: c.ENDQUENCH_ALLOW_OPEN === '1' || c.ENDQUENCH_ALLOW_OPEN === 'true',
+    demo: c.ENDQUENCH_DEMO,
     webhooks: {
       enabled: c.ENDQUENCH_WEBHOOKS === 'on',
       maxAttempts: c.ENDQUENCH_WEBHOOK_MAX_ATTEMPTS,

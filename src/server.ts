@@ -8,6 +8,7 @@ import { hasActiveTokens } from './db/tokens.ts';
 import { isLoopbackHost } from './auth/local.ts';
 import { createDispatcher } from './alerts/dispatcher.ts';
 import { outOfBandRule } from './alerts/rules/outOfBand.ts';
+import { isDatabaseEmpty, loadDemo } from '../seed/load.ts';
 
 /** Refusal to serve a non-local address while no API token exists. */
 export class OpenBindRefused extends Error {}
@@ -46,13 +47,30 @@ export async function startService(config: Config = loadConfig(), logger: Logger
   const port = typeof address === 'object' && address ? address.port : config.port;
   const url = `http://${config.host.includes(':') ? `[${config.host}]` : config.host}:${port}`;
   logger.info({ url }, 'serving');
+  const demoLoading = config.demo === 'auto' && database.kind === 'pglite' ? loadDemoWhenEmpty(database, logger) : Promise.resolve();
   return {
     url,
     database,
     stop: async () => {
+      await demoLoading;
       await dispatcher?.stop();
       await new Promise<void>((resolve) => server.close(() => resolve()));
       await database.close();
     },
   };
+}
+
+/**
+ * A first start on the embedded database shows something: the invented demo plant is loaded in the
+ * background while the service already answers.
+ */
+async function loadDemoWhenEmpty(database: Database, logger: Logger): Promise<void> {
+  try {
+    if (!(await isDatabaseEmpty(database.db))) return;
+    logger.info('the embedded database is empty: loading the invented demo plant (set ENDQUENCH_DEMO=off to start empty)');
+    const summary = await loadDemo(database.db);
+    logger.info({ summary }, 'demo plant loaded');
+  } catch (error) {
+    logger.error({ err: error }, 'loading the demo plant failed; the service runs on without it');
+  }
 }
