@@ -11,6 +11,8 @@ import { runImport, type ImportFormat, type ImportReport } from './ingest/import
 import { loadMillLayout } from './ingest/millLayout.ts';
 import { register as registerTokenCommands } from './cliCommands/token.ts';
 import { register as registerDemoCommand } from './cliCommands/demo.ts';
+import { register as registerRefitCommand } from './cliCommands/refit.ts';
+import { register as registerReportCommand } from './cliCommands/report.ts';
 
 const program = new Command();
 program.name('endquench').description('Hardenability records of bar steel from mills: ingest, analysis, alerts.');
@@ -109,6 +111,8 @@ export function formatReport(report: ImportReport): string {
 
 registerTokenCommands(program);
 registerDemoCommand(program);
+registerRefitCommand(program);
+registerReportCommand(program);
 
 program.parseAsync(process.argv).catch((error: Error) => {
   const logger = createLogger('error');

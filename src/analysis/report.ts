@@ -1,0 +1,188 @@
+// Period report for a supplier review of one mill: per grade, the capability table against the band in
+// force, individuals charts per band distance (SVG), the alerts raised in the period, and the certificates
+// whose checks did not pass. Plain trade language; statistics support acceptance testing, never replace it.
+import type { Db } from '../db/connection.ts';
+import { listHeats } from '../db/heats.ts';
+import { findGrade } from '../db/referenceData.ts';
+import { listAlerts, type AlertView } from '../db/alerts.ts';
+import { checkCurveNonIncreasing } from '../hardenability/checks/curveShape.ts';
+import { checkMartensiteCeiling } from '../hardenability/checks/martensiteCeiling.ts';
+import { checkChemistryLimits, type ChemistryLimits } from '../hardenability/checks/chemistryLimits.ts';
+import { findPossibleCopies } from '../hardenability/checks/copies.ts';
+import type { CheckEvidence, Chemistry } from '../hardenability/types.ts';
+import { capabilityStudy, type CapabilityStudy } from './capabilityStudy.ts';
+import { controlChart, type ControlChart } from './controlCharts.ts';
+import { capabilitySpec, controlChartSpec } from './vegaSpecs.ts';
+import { renderSvg } from './svgRender.ts';
+import { groupByHeat, loadSeriesCurves } from './seriesData.ts';
+
+export const REPORT_CAUTION =
+  'These statistics and predictions help decide where to look; they support, and do not replace, end-quench testing and acceptance to the purchase specification.';
+
+export interface SuspiciousCertificate {
+  heatId: number;
+  heatNumber: string;
+  grade: string;
+  castDate: string;
+  findings: Array<{ check: string; verdict: string; summary: string }>;
+}
+
+export interface GradeSection {
+  grade: string;
+  heats: number;
+  capability: CapabilityStudy | null;
+  capabilityProblem: string | null;
+  charts: ControlChart[];
+  chartProblems: Array<{ distanceMm: number; problem: string }>;
+}
+
+export interface PeriodReport {
+  mill: string;
+  from: string;
+  to: string;
+  generatedAt: string;
+  caution: string;
+  grades: GradeSection[];
+  alerts: AlertView[];
+  suspicious: SuspiciousCertificate[];
+}
+
+export interface ReportRequest {
+  mill: string;
+  from: string;
+  to: string;
+  grade?: string;
+}
+
+function certificateFindings(curves: Awaited<ReturnType<typeof loadSeriesCurves>>, limits: ChemistryLimits | null): Map<number, CheckEvidence[]> {
+  const heats = groupByHeat(curves).map((g) => g[0]);
+  const records = heats.map((h) => ({ heatId: String(h.heatId), millId: h.mill, readings: [...h.readings].map(([mm, hrc]) => ({ mm, hrc })), chemistry: h.chemistry as Chemistry }));
+  const out = new Map<number, CheckEvidence[]>();
+  heats.forEach((h, i) => {
+    const readings = records[i].readings;
+    const checks: CheckEvidence[] = [checkCurveNonIncreasing(readings), findPossibleCopies(records[i], records)];
+    if (h.chemistry.C !== undefined) checks.push(checkMartensiteCeiling(readings, h.chemistry.C));
+    if (limits) checks.push(checkChemistryLimits(h.chemistry as Chemistry, limits));
+    out.set(h.heatId, checks);
+  });
+  return out;
+}
+
+/** Gathers the report's data (no rendering). */
+export async function buildPeriodReport(db: Db, request: ReportRequest): Promise<PeriodReport> {
+  const { heats } = await listHeats(db, { mill: request.mill, grade: request.grade, from: request.from, to: request.to, limit: 1_000_000 });
+  const grades = [...new Set(heats.map((h) => h.grade))].sort();
+  const sections: GradeSection[] = [];
+  const suspicious: SuspiciousCertificate[] = [];
+  for (const grade of grades) {
+    const section: GradeSection = { grade, heats: heats.filter((h) => h.grade === grade).length, capability: null, capabilityProblem: null, charts: [], chartProblems: [] };
+    try {
+      section.capability = await capabilityStudy(db, { grade, mill: request.mill, from: request.from, to: request.to });
+    } catch (error) {
+      section.capabilityProblem = (error as Error).message;
+    }
+    for (const d of section.capability?.distances ?? []) {
+      try {
+        section.charts.push(await controlChart(db, { kind: 'individuals', grade, mill: request.mill, from: request.from, to: request.to, distanceMm: d.distanceMm }));
+      } catch (error) {
+        section.chartProblems.push({ distanceMm: d.distanceMm, problem: (error as Error).message });
+      }
+    }
+    sections.push(section);
+    const info = await findGrade(db, grade);
+    const limits = info && info.chemistryLimits.length
+      ? (Object.fromEntries(info.chemistryLimits.map((l) => [l.element, { ...(l.min === null ? {} : { min: l.min }), ...(l.max === null ? {} : { max: l.max }) }])) as ChemistryLimits)
+      : null;
+    const curves = await loadSeriesCurves(db, { grade, mill: request.mill, from: request.from, to: request.to });
+    for (const [heatId, checks] of certificateFindings(curves, limits)) {
+      const bad = checks.filter((c) => c.verdict === 'fail' || c.verdict === 'warn');
+      if (!bad.length) continue;
+      const h = heats.find((x) => x.id === heatId)!;
+      suspicious.push({ heatId, heatNumber: h.heatNumber, grade, castDate: h.castDate, findings: bad.map((c) => ({ check: c.title, verdict: c.verdict, summary: c.summary })) });
+    }
+  }
+  const alerts = (await listAlerts(db, { mill: request.mill, limit: 10_000 })).alerts.filter((a) => {
+    const day = a.createdAt.slice(0, 10);
+    return (day >= request.from && day <= request.to) || a.status !== 'resolved';
+  });
+  return { mill: request.mill, from: request.from, to: request.to, generatedAt: new Date().toISOString(), caution: REPORT_CAUTION, grades: sections, alerts, suspicious };
+}
+
+const esc = (s: unknown) => String(s ?? '').replace(/[&<>"']/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' })[c]!);
+const num = (v: number | null | undefined, d = 2) => (v === null || v === undefined || !Number.isFinite(v) ? '–' : v.toFixed(d));
+
+/** In plain words, what a Ppk says (common practice: 1.33 is the usual supplier target). */
+export function ppkWords(ppk: number | null | undefined): string {
+  if (ppk === null || ppk === undefined || !Number.isFinite(ppk)) return 'not enough data';
+  if (ppk >= 1.33) return 'comfortably inside the band';
+  if (ppk >= 1) return 'inside the band, little margin';
+  return 'expect heats outside the band';
+}
+
+/** The report as one self-contained HTML page with inline SVG charts. */
+export async function renderReportHtml(report: PeriodReport): Promise<string> {
+  const parts: string[] = [];
+  parts.push(`<!doctype html><html lang="en"><head><meta charset="utf-8"><title>Hardenability review: ${esc(report.mill)} ${esc(report.from)} to ${esc(report.to)}</title>
+<style>body{font-family:Helvetica,Arial,sans-serif;margin:2em;color:#222;max-width:1000px}table{border-collapse:collapse;margin:1em 0}th,td{border:1px solid #bbb;padding:4px 8px;text-align:right}th{background:#eef2f6}td.l,th.l{text-align:left}.caution{border-left:4px solid #c8691c;padding:8px 12px;background:#faf3ea}figure{margin:1em 0}</style></head><body>`);
+  parts.push(`<h1>Hardenability review: ${esc(report.mill)}</h1><p>Heats cast from ${esc(report.from)} to ${esc(report.to)}. Prepared ${esc(report.generatedAt.slice(0, 10))}.</p>`);
+  parts.push(`<p class="caution">${esc(report.caution)}</p>`);
+  if (report.grades.length === 0) parts.push('<p>No heats from this mill in the period.</p>');
+  for (const g of report.grades) {
+    parts.push(`<h2>${esc(g.grade)}: ${g.heats} heat(s)</h2>`);
+    if (g.capabilityProblem) parts.push(`<p>Capability not worked out: ${esc(g.capabilityProblem)}</p>`);
+    if (g.capability) {
+      parts.push('<table><tr><th class="l">Distance</th><th>Band</th><th>Heats</th><th>Average HRC</th><th>Spread (SD)</th><th>Ppk</th><th>Ppk 95 % range</th><th>Expected outside band (ppm)</th><th>Found outside</th><th class="l">In short</th></tr>');
+      for (const d of g.capability.distances) {
+        const r = d.result;
+        const band = `${d.lsl ?? '–'} to ${d.usl ?? '–'}`;
+        parts.push(
+          `<tr><td class="l">${esc(d.label ?? `${d.distanceMm} mm`)}</td><td>${esc(band)}</td><td>${d.n}</td><td>${num(r?.mean, 1)}</td><td>${num(r?.sigmaOverall)}</td><td>${num(r?.ppk)}</td><td>${r ? `${num(r.intervals.ppk.lower)} – ${num(r.intervals.ppk.upper)}` : '–'}</td><td>${num(r?.expectedPpm.overall.total, 0)}</td><td>${r ? Math.round((r.observedPpm.total * r.n) / 1e6) : '–'}</td><td class="l">${esc(ppkWords(r?.ppk))}${r?.flags.unstable ? '; not steady over the period' : ''}${r?.flags.nonNormal ? '; spread not bell-shaped' : ''}</td></tr>`,
+        );
+      }
+      parts.push('</table>');
+      parts.push(`<figure>${await renderSvg(capabilitySpec(g.capability))}</figure>`);
+    }
+    for (const chart of g.charts) {
+      const note = chart.signals.length ? `Signals: ${chart.signals.map((s) => `${s.description} (heats ${s.heats.slice(0, 8).join(', ')}${s.heats.length > 8 ? ', …' : ''})`).join('; ')}.` : 'No signal: the series looks steady.';
+      parts.push(`<figure>${await renderSvg(controlChartSpec(chart, { width: 760, height: 200 }))}<figcaption>${esc(note)}</figcaption></figure>`);
+    }
+    for (const p of g.chartProblems) parts.push(`<p>No chart at ${esc(p.distanceMm)} mm: ${esc(p.problem)}</p>`);
+  }
+  parts.push('<h2>Alerts</h2>');
+  if (report.alerts.length === 0) parts.push('<p>No alert raised in the period, and none open.</p>');
+  else {
+    parts.push('<table><tr><th class="l">Raised</th><th class="l">Severity</th><th class="l">What</th><th class="l">Heat</th><th class="l">Status</th></tr>');
+    for (const a of report.alerts) parts.push(`<tr><td class="l">${esc(a.createdAt.slice(0, 10))}</td><td class="l">${esc(a.severity)}</td><td class="l">${esc(a.title)}</td><td class="l">${esc(a.heat?.heatNumber ?? '')}</td><td class="l">${esc(a.status)}</td></tr>`);
+    parts.push('</table>');
+  }
+  parts.push('<h2>Certificates to look at</h2>');
+  if (report.suspicious.length === 0) parts.push('<p>Every certificate passed the checks (curve shape, quenched-end hardness, chemistry limits, repeated values).</p>');
+  else {
+    parts.push('<table><tr><th class="l">Heat</th><th class="l">Grade</th><th class="l">Cast</th><th class="l">Finding</th></tr>');
+    for (const s of report.suspicious) for (const f of s.findings) parts.push(`<tr><td class="l">${esc(s.heatNumber)}</td><td class="l">${esc(s.grade)}</td><td class="l">${esc(s.castDate)}</td><td class="l">${esc(f.verdict === 'fail' ? 'Check failed' : 'Worth a look')}: ${esc(f.check)}. ${esc(f.summary)}</td></tr>`);
+    parts.push('</table>');
+  }
+  parts.push(`<p class="caution">${esc(report.caution)}</p></body></html>`);
+  return parts.join('\n');
+}
+
+const csvCell = (v: unknown) => {
+  const s = v === null || v === undefined || (typeof v === 'number' && !Number.isFinite(v)) ? '' : String(v);
+  return /[",\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
+};
+
+/** The report as CSV: one row per grade and distance (capability), then findings and alerts. */
+export function renderReportCsv(report: PeriodReport): string {
+  const rows: unknown[][] = [['section', 'mill', 'grade', 'distance_mm', 'label', 'lsl', 'usl', 'n', 'mean', 'sd_overall', 'ppk', 'ppk_low95', 'ppk_high95', 'cpk', 'expected_ppm', 'observed_outside', 'note']];
+  for (const g of report.grades) {
+    for (const d of g.capability?.distances ?? []) {
+      const r = d.result;
+      rows.push(['capability', report.mill, g.grade, d.distanceMm, d.label, d.lsl, d.usl, d.n, r?.mean, r?.sigmaOverall, r?.ppk, r?.intervals.ppk.lower, r?.intervals.ppk.upper, r?.cpk, r?.expectedPpm.overall.total, r ? Math.round((r.observedPpm.total * r.n) / 1e6) : null, d.note ?? ppkWords(r?.ppk)]);
+    }
+    for (const c of g.charts) for (const s of c.signals) rows.push(['chart_signal', report.mill, g.grade, c.distanceMm, c.label, null, null, s.points.length, null, null, null, null, null, null, null, null, `${s.description}: ${s.heats.join(' ')}`]);
+  }
+  for (const s of report.suspicious) for (const f of s.findings) rows.push(['certificate', report.mill, s.grade, null, s.heatNumber, null, null, null, null, null, null, null, null, null, null, null, `${f.verdict}: ${f.check}. ${f.summary}`]);
+  for (const a of report.alerts) rows.push(['alert', report.mill, a.grade, a.distanceMm, a.heat?.heatNumber ?? '', null, null, null, null, null, null, null, null, null, null, null, `${a.severity} ${a.status}: ${a.title}`]);
+  rows.push(['caution', report.mill, null, null, null, null, null, null, null, null, null, null, null, null, null, null, report.caution]);
+  return rows.map((r) => r.map(csvCell).join(',')).join('\n') + '\n';
+}
