@@ -3,6 +3,7 @@ import ExcelJS from 'exceljs';
 import { describe, expect, it } from 'vitest';
 import { loadMillLayout } from '../../../src/ingest/millLayout.ts';
 import { parseCertificateTable } from '../../../src/ingest/tableParser.ts';
+import { excelSerialToDate, isDateFormatCode, readXlsx } from '../../../src/ingest/xlsxReader.ts';
 
 // Values checked below are the ones the test writes into the workbook.
 const today = () => '2025-06-30';
@@ -118,5 +119,30 @@ describe('xlsx', () => {
   it('reports a file that is not a workbook', async () => {
     const r = await parseCertificateTable(new TextEncoder().encode('mill,heat_number\n'), { format: 'xlsx', today });
     expect(r.fileProblems[0].message).toMatch(/^the file is not a readable XLSX workbook/);
+  });
+
+  it('reads text with XML special characters, booleans and the 1904 date system', async () => {
+    const wb = new ExcelJS.Workbook();
+    wb.properties.date1904 = true;
+    const sheet = sheetWith(wb, 'Data', [['Lab <North> & "South"', true, utc(2024, 3, 2)]]);
+    sheet.getCell('C1').numFmt = 'dd.mm.yyyy';
+    const t = await readXlsx(await toBytes(wb));
+    expect(t.rows).toEqual([{ row: 1, cells: ['Lab <North> & "South"', true, utc(2024, 3, 2)] }]);
+  });
+});
+
+describe('xlsx number formats and serials', () => {
+  it('tells date formats from number formats', () => {
+    // Format codes as ECMA-376 Part 1 18.8.31 writes them.
+    for (const code of ['yyyy-mm-dd', 'dd.mm.yyyy', 'd/m/yy h:mm', '[$-409]mmm d, yyyy']) expect(isDateFormatCode(code)).toBe(true);
+    for (const code of ['General', '0.00', '#,##0.000', '0.00"mm"', '[Red]0.0', '@']) expect(isDateFormatCode(code)).toBe(false);
+  });
+
+  it('converts serials in both date systems', () => {
+    // 1900 system: 45292 is 2024-01-01 (from memory). 1904 system: the same day is 1462 days fewer
+    // (the documented offset between Excel's two date systems).
+    expect(excelSerialToDate(45292, false).toISOString()).toBe('2024-01-01T00:00:00.000Z');
+    expect(excelSerialToDate(45292 - 1462, true).toISOString()).toBe('2024-01-01T00:00:00.000Z');
+    expect(excelSerialToDate(45292.5, false).toISOString()).toBe('2024-01-01T12:00:00.000Z');
   });
 });
