@@ -15,6 +15,7 @@ import { alertRoutes } from './routes/alerts.ts';
 import { webhookRoutes } from './routes/webhooks.ts';
 import { accessControl, type AfterWriteHook } from '../auth/middleware.ts';
 import { annotateRoles } from '../auth/openapiRoles.ts';
+import { webRoutes } from '../web/routes.ts';
 
 export interface AppDependencies {
   database: Database;
@@ -55,6 +56,7 @@ export function createApp({ database, logger, version = '0.1.0', access = {} }: 
   analysisRoutes(app, database.db);
   alertRoutes(app, database.db);
   webhookRoutes(app, database.db);
+  webRoutes(app, database.db);
 
   // Every operation's role comes from the access policy (x-required-role, x-roles, security).
   app.get('/openapi.json', (c) => c.json(annotateRoles(app.getOpenAPI31Document({
