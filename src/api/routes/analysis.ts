@@ -23,7 +23,10 @@ import type { AppEnv } from '../context.ts';
 
 const json = (schema: z.ZodType, description: string) => ({ description, content: { 'application/json': { schema } } });
 const anyObject = z.record(z.string(), z.unknown());
-const isoDate = z.string().regex(/^\d{4}-\d{2}-\d{2}$/, 'must be a date written YYYY-MM-DD');
+const isoDate = z
+  .string()
+  .regex(/^\d{4}-\d{2}-\d{2}$/, 'must be a date written YYYY-MM-DD')
+  .refine((d) => !Number.isNaN(Date.parse(`${d}T00:00:00Z`)) && new Date(`${d}T00:00:00Z`).toISOString().startsWith(d), 'is not a real calendar date');
 const source = z.enum(['mill_certificate', 'receiving_inspection', 'both']).optional().openapi({ description: 'Which tests make the series (default mill_certificate).' });
 const errors = {
   400: json(errorBodySchema, 'Invalid request'),
