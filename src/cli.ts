@@ -9,6 +9,7 @@ import { createLogger } from './logger.ts';
 import { startService } from './server.ts';
 import { runImport, type ImportFormat, type ImportReport } from './ingest/importPipeline.ts';
 import { loadMillLayout } from './ingest/millLayout.ts';
+import { runIngestRules } from './alerts/rules/index.ts';
 import { register as registerTokenCommands } from './cliCommands/token.ts';
 import { register as registerDemoCommand } from './cliCommands/demo.ts';
 import { register as registerRefitCommand } from './cliCommands/refit.ts';
@@ -20,8 +21,10 @@ program.name('endquench').description('Hardenability records of bar steel from m
 program
   .command('serve')
   .description('start the web service (PORT, HOST, DATABASE_URL, ENDQUENCH_DATA_DIR, LOG_LEVEL)')
-  .action(async () => {
-    const service = await startService();
+  .option('--allow-open', 'serve a non-local address although no API token exists (same as ENDQUENCH_ALLOW_OPEN=1)')
+  .action(async (opts: { allowOpen?: boolean }) => {
+    const config = loadConfig();
+    const service = await startService({ ...config, allowOpen: config.allowOpen || Boolean(opts.allowOpen) });
     const stop = async () => {
       await service.stop();
       process.exit(0);
@@ -73,6 +76,7 @@ program
         filename: basename(file),
         layout,
         createdBy: 'cli',
+        afterWrite: runIngestRules,
         options: { dryRun: opts.dryRun, acceptValid: opts.acceptValid, createMissing: opts.createMissing, revise: opts.revise },
         onProgress: (stage, done, total) => {
           if (!bar || stage !== 'store') return;

@@ -7,7 +7,7 @@ import { createApp } from './api/app.ts';
 import { hasActiveTokens } from './db/tokens.ts';
 import { isLoopbackHost } from './auth/local.ts';
 import { createDispatcher } from './alerts/dispatcher.ts';
-import { outOfBandRule } from './alerts/rules/outOfBand.ts';
+import { INGEST_RULES } from './alerts/rules/index.ts';
 import { isDatabaseEmpty, loadDemo } from '../seed/load.ts';
 
 /** Refusal to serve a non-local address while no API token exists. */
@@ -33,7 +33,7 @@ export async function startService(config: Config = loadConfig(), logger: Logger
     );
   }
   if (config.allowOpen && !isLoopbackHost(config.host)) logger.warn({ host: config.host }, 'ENDQUENCH_ALLOW_OPEN: while no API token exists, every caller is administrator');
-  const app = createApp({ database, logger, access: { allowOpen: config.allowOpen, afterWrite: [outOfBandRule] } });
+  const app = createApp({ database, logger, access: { allowOpen: config.allowOpen, afterWrite: INGEST_RULES } });
   const webhooks = config.webhooks;
   const dispatcher =
     webhooks?.enabled === false

@@ -5,7 +5,7 @@
 import type { Db } from '../db/connection.ts';
 import type { Logger } from '../logger.ts';
 import { backoffDelayMs } from './backoff.ts';
-import { buryAbandoned, claimDue, markDelivered, markFailed, type ClaimedDelivery } from './outbox.ts';
+import { buryAbandoned, claimDue, markDelivered, markFailed, type ClaimedDelivery } from '../db/outbox.ts';
 import { signedHeaders } from './signature.ts';
 
 export const IDEMPOTENCY_HEADER = 'Idempotency-Key';

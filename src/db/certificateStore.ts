@@ -19,7 +19,9 @@ export type CertificateDecision =
   | { action: 'unchanged'; heatId: number; revision: number }
   | { action: 'revise'; heatId: number; revision: number; differences: FieldDifference[] }
   | { action: 'conflict'; heatId: number; revision: number; differences: FieldDifference[] }
-  | { action: 'reject'; reason: string };
+  | { action: 'reject'; reason: string }
+  /** The caller may not send this mill's data. */
+  | { action: 'forbidden'; reason: string };
 
 export interface CertificatePlanItem {
   certificate: PreparedCertificate;
@@ -31,6 +33,8 @@ export interface TestPlanItem {
   /** Known heat, or null when the heat comes with a certificate of the same batch. */
   heatId: number | null;
   reject?: string;
+  /** The caller may not send this mill's data. */
+  forbidden?: boolean;
 }
 
 export interface StorePlan {
@@ -46,6 +50,8 @@ export interface PlanOptions {
   revise: boolean;
   /** Create unknown mills and grades instead of refusing their certificates. */
   createMissing: boolean;
+  /** Refuse every item of another mill (a caller limited to one mill). */
+  onlyMill?: string;
 }
 
 const p = (value: unknown): SQL => sql`${sql.param(value)}`;
@@ -100,6 +106,9 @@ export async function planStore(
   const seenInBatch = new Map<string, PreparedCertificate>();
   const planned: CertificatePlanItem[] = certificates.map((certificate) => {
     const decide = (): CertificateDecision => {
+      if (options.onlyMill !== undefined && certificate.mill !== options.onlyMill) {
+        return { action: 'forbidden', reason: `this caller may only send data of mill ${options.onlyMill}, not of "${certificate.mill}"` };
+      }
       if (!mills.has(certificate.mill) && !options.createMissing) {
         return { action: 'reject', reason: `mill "${certificate.mill}" is not on file (add it first, or import with create-missing)` };
       }
@@ -126,6 +135,9 @@ export async function planStore(
 
   const createdInBatch = new Set(planned.filter((c) => c.decision.action === 'create').map((c) => c.certificate.key));
   const tests: TestPlanItem[] = testRecords.map((record) => {
+    if (options.onlyMill !== undefined && record.mill !== options.onlyMill) {
+      return { record, heatId: null, forbidden: true, reject: `this caller may only send data of mill ${options.onlyMill}, not of "${record.mill}"` };
+    }
     const stored = heats.get(record.key);
     if (stored) return { record, heatId: stored.heat_id };
     if (createdInBatch.has(record.key)) return { record, heatId: null };

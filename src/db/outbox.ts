@@ -4,8 +4,8 @@
 // share the queue without delivering a row twice at the same time; a claim that is never settled
 // (a crashed instance) is taken again once its lock expires (at-least-once delivery).
 import { sql } from 'drizzle-orm';
-import { rowsOf, type Db, type Executor } from '../db/connection.ts';
-import { generateWebhookSecret } from './signature.ts';
+import { rowsOf, type Db, type Executor } from './connection.ts';
+import { generateWebhookSecret } from '../alerts/signature.ts';
 
 export type DeliveryStatus = 'pending' | 'delivered' | 'dead';
 

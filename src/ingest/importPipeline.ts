@@ -26,6 +26,8 @@ export interface ImportOptions {
   createMissing?: boolean;
   /** Store changed certificates as new revisions instead of refusing them. */
   revise?: boolean;
+  /** Refuse items of any other mill (set for mill-scoped callers). */
+  onlyMill?: string;
 }
 
 export interface ImportRequest {
@@ -41,7 +43,7 @@ export interface ImportRequest {
   afterWrite?: (tx: Executor, written: ApplyResult) => Promise<void>;
 }
 
-export type ItemStatus = 'created' | 'unchanged' | 'revised' | 'added' | 'conflict' | 'invalid' | 'rejected' | 'not_written';
+export type ItemStatus = 'created' | 'unchanged' | 'revised' | 'added' | 'conflict' | 'invalid' | 'rejected' | 'forbidden' | 'not_written';
 
 export interface ItemOutcome {
   key: string;
@@ -137,7 +139,11 @@ export async function runImport(db: Db, request: ImportRequest): Promise<ImportR
   let written: ApplyResult | null = null;
   let plan: StorePlan | null = null;
   const report = await db.transaction(async (tx) => {
-    plan = await planStore(tx, validCertificates, validTests, { revise: Boolean(options.revise), createMissing: Boolean(options.createMissing) });
+    plan = await planStore(tx, validCertificates, validTests, {
+      revise: Boolean(options.revise),
+      createMissing: Boolean(options.createMissing),
+      onlyMill: options.onlyMill,
+    });
     const outcome = describe(importId, parsed, plan);
     const clean = outcome.summary.invalid === 0 && outcome.problems.length === 0;
     if (options.dryRun) {
@@ -291,6 +297,8 @@ function certificateOutcome(item: CertificatePlanItem, rows?: number[]): ItemOut
       };
     case 'reject':
       return { ...base, status: 'rejected', problems: [{ row: rows?.[0], path: '', message: d.reason }] };
+    case 'forbidden':
+      return { ...base, status: 'forbidden', problems: [{ row: rows?.[0], path: '', message: d.reason }] };
   }
 }
 
@@ -314,14 +322,14 @@ function describe(importId: number, parsed: ParsedDocument, plan: StorePlan): Im
     const item = plannedTests.shift()!;
     report.items.push(
       item.reject
-        ? { key: t.key, kind: 'test', rows: t.rows, status: 'rejected', problems: [{ row: t.rows?.[0], path: '', message: item.reject }] }
+        ? { key: t.key, kind: 'test', rows: t.rows, status: item.forbidden ? 'forbidden' : 'rejected', problems: [{ row: t.rows?.[0], path: '', message: item.reject }] }
         : { key: t.key, kind: 'test', rows: t.rows, status: 'added', heatId: item.heatId ?? undefined, problems: [] },
     );
   }
   const s = report.summary;
   s.items = report.items.length;
   for (const item of report.items) {
-    if (item.status === 'invalid' || item.status === 'rejected' || item.status === 'conflict') s.invalid++;
+    if (item.status === 'invalid' || item.status === 'rejected' || item.status === 'forbidden' || item.status === 'conflict') s.invalid++;
     if (item.status === 'created') s.created++;
     if (item.status === 'unchanged') s.unchanged++;
     if (item.status === 'revised') s.revised++;

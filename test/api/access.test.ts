@@ -211,3 +211,13 @@ describe('OpenAPI document', () => {
     expect(doc.components.securitySchemes.bearerToken).toMatchObject({ type: 'http', scheme: 'bearer' });
   });
 });
+
+describe('a mill token and dry runs', () => {
+  test("a dry run naming another mill's heat is refused before anything about that heat is reported", async () => {
+    const doc = JSON.stringify([certificate({ mill: 'OSTRAVEK', heatNumber: 'O-1', certificateNumber: 'OS-1' })]);
+    const r = await call('POST', '/api/v1/imports?format=json&dryRun=true', 'mill', doc);
+    expect(r.status).toBe(403);
+    expect(r.body.error.code).toBe('forbidden_mill');
+    expect(JSON.stringify(r.body)).not.toMatch(/differences|heatId/);
+  });
+});

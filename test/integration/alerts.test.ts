@@ -7,7 +7,7 @@ import { createApp } from '../../src/api/app.ts';
 import { createLogger } from '../../src/logger.ts';
 import { rowsOf } from '../../src/db/connection.ts';
 import { raiseAlert, type RaiseAlertInput } from '../../src/db/alerts.ts';
-import { createSubscription } from '../../src/alerts/outbox.ts';
+import { createSubscription } from '../../src/db/outbox.ts';
 import { outOfBandRule } from '../../src/alerts/rules/outOfBand.ts';
 import { createTestDatabase, type TestDatabase } from '../helpers/testDatabase.ts';
 import { certificate } from '../fixtures/certificates.ts';

@@ -9,7 +9,7 @@ import { createApp } from '../../src/api/app.ts';
 import { createLogger } from '../../src/logger.ts';
 import { openDatabase, rowsOf, type Database } from '../../src/db/connection.ts';
 import { raiseAlert } from '../../src/db/alerts.ts';
-import { claimDue } from '../../src/alerts/outbox.ts';
+import { claimDue } from '../../src/db/outbox.ts';
 import { createDispatcher, type DispatcherOptions } from '../../src/alerts/dispatcher.ts';
 import { verifySignature } from '../../src/alerts/signature.ts';
 import { createTestDatabase, type TestDatabase } from '../helpers/testDatabase.ts';

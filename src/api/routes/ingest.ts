@@ -42,6 +42,17 @@ function formatOf(contentType: string | undefined, filename: string | undefined,
   throw new ApiError(415, 'unknown_format', 'Say which format the file is in: format=csv, xlsx or json (or send a file name with that extension).');
 }
 
+/** A mill-scoped caller that sent another mill's data gets 403, whatever else the document held. */
+function refuseForeignMill(report: ImportReport) {
+  const foreign = report.items.filter((i) => i.status === 'forbidden');
+  if (foreign.length) {
+    throw new ApiError(403, 'forbidden_mill', foreign[0].problems[0]?.message ?? 'this caller may not send data of that mill', {
+      importId: report.importId,
+      items: foreign.map((i) => i.key),
+    });
+  }
+}
+
 const statusOfReport = (report: ImportReport) =>
   report.status === 'accepted' || report.status === 'partially_accepted' ? 201 : report.status === 'rejected' ? 422 : 200;
 
@@ -70,15 +81,15 @@ export function ingestRoutes(app: OpenAPIHono<AppEnv>, db: Db) {
     const bytes = new Uint8Array(await c.req.arrayBuffer());
     const q = c.req.query();
     const millScope = c.get('auth')?.millScope;
-    if (millScope) assertOwnMill(bytes, millScope);
     const report = await runImport(db, {
       bytes,
       format: 'json',
       filename: 'api-certificate.json',
       createdBy: c.get('auth')?.name,
-      options: { revise: q.revision === 'true', createMissing: q.createMissing === 'true' },
+      options: { revise: q.revision === 'true', createMissing: q.createMissing === 'true', onlyMill: millScope },
       afterWrite: c.get('afterWrite'),
     });
+    refuseForeignMill(report);
     const item = report.items[0];
     if (report.status === 'duplicate') return c.json(report, 200);
     if (item?.status === 'conflict') {
@@ -164,9 +175,10 @@ export function ingestRoutes(app: OpenAPIHono<AppEnv>, db: Db) {
       filename,
       layout,
       createdBy: c.get('auth')?.name,
-      options: { dryRun: q.dryRun, acceptValid: q.acceptValid, createMissing: q.createMissing, revise: q.revise },
+      options: { dryRun: q.dryRun, acceptValid: q.acceptValid, createMissing: q.createMissing, revise: q.revise, onlyMill: c.get('auth')?.millScope },
       afterWrite: c.get('afterWrite'),
     });
+    refuseForeignMill(report);
     return c.json(report, statusOfReport(report));
   });
 
@@ -200,18 +212,4 @@ export function ingestRoutes(app: OpenAPIHono<AppEnv>, db: Db) {
       return c.json({ ...rest, createdAt: row.createdAt.toISOString(), finishedAt: row.finishedAt?.toISOString() ?? null }, 200);
     },
   );
-}
-
-/** A mill-scoped caller may only send its own mill's certificates. */
-function assertOwnMill(bytes: Uint8Array, millScope: string) {
-  let body: unknown;
-  try {
-    body = JSON.parse(Buffer.from(bytes).toString('utf8'));
-  } catch {
-    return; // the pipeline reports invalid JSON
-  }
-  const mill = (body as { mill?: unknown })?.mill;
-  if (typeof mill === 'string' && mill !== millScope) {
-    throw new ApiError(403, 'forbidden_mill', `This token may only send certificates of mill ${millScope}.`);
-  }
 }

@@ -11,7 +11,7 @@ import {
   listDeliveries,
   listSubscriptions,
   retryDelivery,
-} from '../../alerts/outbox.ts';
+} from '../../db/outbox.ts';
 import { ApiError, errorBodySchema } from '../errors.ts';
 import type { AppEnv } from '../context.ts';
 
