@@ -46,6 +46,10 @@ export const ACCESS_RULES: readonly AccessRule[] = [
   rule('POST', '/api/v1/certificates', 'engineer', true),
   rule('POST', '/api/v1/imports', 'engineer', true),
   rule('GET', '/api/v1/imports/{id}', 'viewer'),
+  // Analysis: predictions and band trials compute without storing anything, so reading is enough;
+  // baselines and model fits change what charts and predictions use (engineer, by the default for writes).
+  rule('POST', '/api/v1/predict', 'viewer'),
+  rule('POST', '/api/v1/band-trials', 'viewer'),
   // Alerts.
   rule('GET', '/api/v1/alerts', 'viewer'),
   rule('GET', '/api/v1/alerts/{id}', 'viewer'),

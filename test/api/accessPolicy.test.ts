@@ -36,6 +36,12 @@ describe('policy', () => {
       expect(requiredAccess('DELETE', path)).toEqual({ minRole: 'engineer', mill: false });
     }
   });
+  test('predictions and band trials compute without storing, so a viewer may post them; baselines and fits need engineer', () => {
+    expect(requiredAccess('POST', '/api/v1/predict')).toEqual({ minRole: 'viewer', mill: false });
+    expect(requiredAccess('POST', '/api/v1/band-trials')).toEqual({ minRole: 'viewer', mill: false });
+    expect(requiredAccess('POST', '/api/v1/baselines').minRole).toBe('engineer');
+    expect(requiredAccess('POST', '/api/v1/models/fit').minRole).toBe('engineer');
+  });
   test('webhooks and tokens are admin whatever the method', () => {
     for (const m of ['GET', 'POST', 'DELETE']) expect(requiredAccess(m, '/api/v1/webhooks/4/deliveries').minRole).toBe('admin');
     expect(rolesAllowed(requiredAccess('GET', '/api/v1/webhooks'))).toEqual(['admin']);
