@@ -310,7 +310,7 @@ function readRow(raw: RawRow, setup: Setup, warnings: ValidationProblem[]): RowD
   for (const column of setup.columns) {
     const cell = raw.cells[column.index];
     if (column.role.kind === 'ignored') {
-      if (column.header === '' && !isBlankCell(cell) && !data.problems.length) {
+      if (column.header === '' && !isBlankCell(cell)) {
         // A value under an empty header is most likely a shifted row.
         warnings.push({ row: raw.row, path: '', message: `row ${raw.row}: column ${column.index + 1} has no header; its value ${JSON.stringify(showCell(cell))} was ignored` });
       }

@@ -186,6 +186,12 @@ describe('our own layout', () => {
     ]);
   });
 
+  it('warns about a value under an empty header', async () => {
+    const r = await csv([`${HEAD},`, `${row('H1', 'L1')},stray`].join('\n'));
+    expect(r.warnings.map((w) => w.message)).toEqual(['row 2: column 14 has no header; its value "stray" was ignored']);
+    expect(problemsOf(r)).toEqual([]);
+  });
+
   it('auto-detects a semicolon delimiter and reads Windows-1252 text', async () => {
     const text = 'mill;grade;heat_number;cast_date;C;laboratory;J 1.5 mm\nAVS;8620H;H1;2024-01-05;0.2;Prüfstelle;45\n';
     const bytes = Uint8Array.from([...text].map((ch) => ch.charCodeAt(0))); // Latin-1 bytes: "ü" is 0xFC
