@@ -129,7 +129,7 @@ function fileProblem(message: string): ValidationProblem {
 }
 
 function headerText(cell: RawCell): string {
-  return isBlankCell(cell) && !(typeof cell === 'string' && cell.trim() !== '') ? '' : showCell(cell).trim();
+  return cell === null || cell === undefined ? '' : showCell(cell).trim();
 }
 
 function resolveColumns(

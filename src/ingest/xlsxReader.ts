@@ -184,7 +184,7 @@ function decodeRef(ref: string): { row: number; col: number } | undefined {
   return m ? { col: columnNumber(m[1]), row: Number(m[2]) } : undefined;
 }
 
-/** Column and row of a plain cell reference such as "AB12" without allocating; [0, 0] when it is not one. */
+/** Reads the r="AB12" attribute into out = [column, row] without allocating; false when there is none. */
 function refParts(attrs: string, out: [number, number]): boolean {
   const at = attrs.indexOf(' r="');
   const start = at >= 0 ? at + 4 : attrs.startsWith('r="') ? 3 : -1;
@@ -284,9 +284,9 @@ function readSheet(xml: string, ctx: Context): { grid: Map<number, RawCell[]>; m
       continue;
     }
     if (name === 'mergeCell') {
-      const ref = /\bref="([A-Z$0-9]+):([A-Z$0-9]+)"/.exec(attrs);
-      const a = ref && decodeRef(ref[1]);
-      const b = ref && decodeRef(ref[2]);
+      const range = /\bref="([A-Z$0-9]+):([A-Z$0-9]+)"/.exec(attrs);
+      const a = range && decodeRef(range[1]);
+      const b = range && decodeRef(range[2]);
       if (a && b) merges.push({ top: Math.min(a.row, b.row), left: Math.min(a.col, b.col), bottom: Math.max(a.row, b.row), right: Math.max(a.col, b.col) });
       continue;
     }

@@ -1,4 +1,5 @@
 import { readFileSync } from 'node:fs';
+import { crc32, deflateRawSync } from 'node:zlib';
 import ExcelJS from 'exceljs';
 import { describe, expect, it } from 'vitest';
 import { loadMillLayout } from '../../../src/ingest/millLayout.ts';
@@ -144,5 +145,77 @@ describe('xlsx number formats and serials', () => {
     expect(excelSerialToDate(45292, false).toISOString()).toBe('2024-01-01T00:00:00.000Z');
     expect(excelSerialToDate(45292 - 1462, true).toISOString()).toBe('2024-01-01T00:00:00.000Z');
     expect(excelSerialToDate(45292.5, false).toISOString()).toBe('2024-01-01T12:00:00.000Z');
+  });
+});
+
+// A hand-written workbook for SpreadsheetML forms exceljs does not write: a namespace prefix, inline
+// and formula strings, cells without a reference, a t="d" ISO date. ZIP layout per PKWARE APPNOTE.TXT.
+function zip(files: Record<string, string>): Uint8Array {
+  const chunks: Buffer[] = [];
+  const central: Buffer[] = [];
+  let offset = 0;
+  for (const [name, text] of Object.entries(files)) {
+    const data = Buffer.from(text, 'utf8');
+    const packed = deflateRawSync(data);
+    const nameBytes = Buffer.from(name, 'utf8');
+    const local = Buffer.alloc(30);
+    local.writeUInt32LE(0x04034b50, 0);
+    local.writeUInt16LE(20, 4);
+    local.writeUInt16LE(8, 8);
+    local.writeUInt32LE(crc32(data), 14);
+    local.writeUInt32LE(packed.length, 18);
+    local.writeUInt32LE(data.length, 22);
+    local.writeUInt16LE(nameBytes.length, 26);
+    const entry = Buffer.alloc(46);
+    entry.writeUInt32LE(0x02014b50, 0);
+    entry.writeUInt16LE(20, 4);
+    entry.writeUInt16LE(20, 6);
+    entry.writeUInt16LE(8, 10);
+    entry.writeUInt32LE(crc32(data), 16);
+    entry.writeUInt32LE(packed.length, 20);
+    entry.writeUInt32LE(data.length, 24);
+    entry.writeUInt16LE(nameBytes.length, 28);
+    entry.writeUInt32LE(offset, 42);
+    chunks.push(local, nameBytes, packed);
+    central.push(entry, nameBytes);
+    offset += local.length + nameBytes.length + packed.length;
+  }
+  const dir = Buffer.concat(central);
+  const end = Buffer.alloc(22);
+  end.writeUInt32LE(0x06054b50, 0);
+  end.writeUInt16LE(Object.keys(files).length, 8);
+  end.writeUInt16LE(Object.keys(files).length, 10);
+  end.writeUInt32LE(dir.length, 12);
+  end.writeUInt32LE(offset, 16);
+  return new Uint8Array(Buffer.concat([...chunks, dir, end]));
+}
+
+describe('xlsx written by other programs', () => {
+  it('reads prefixed elements, inline and formula strings, unreferenced cells and ISO date cells', async () => {
+    const ns = 'http://schemas.openxmlformats.org/spreadsheetml/2006/main';
+    const bytes = zip({
+      'xl/workbook.xml': `<x:workbook xmlns:x="${ns}" xmlns:r="http://schemas.openxmlformats.org/officeDocument/2006/relationships"><x:sheets><x:sheet name="Jominy" sheetId="1" r:id="rId1"/></x:sheets></x:workbook>`,
+      'xl/_rels/workbook.xml.rels': '<Relationships><Relationship Id="rId1" Target="worksheets/sheet1.xml"/></Relationships>',
+      'xl/worksheets/sheet1.xml':
+        `<x:worksheet xmlns:x="${ns}"><x:sheetData>` +
+        '<x:row r="1"><x:c t="inlineStr"><x:is><x:t>Melt</x:t></x:is></x:c><x:c t="inlineStr"><x:is><x:r><x:t>C </x:t></x:r><x:r><x:t>%</x:t></x:r></x:is></x:c><x:c t="inlineStr"><x:is><x:t>Cast</x:t></x:is></x:c><x:c t="inlineStr"><x:is><x:t>J1</x:t></x:is></x:c></x:row>' +
+        '<x:row r="2"><x:c r="A2" t="str"><x:f>"K-"&amp;"9"</x:f><x:v>K-9</x:v></x:c><x:c r="B2"><x:v>0.41</x:v></x:c><x:c r="C2" t="d"><x:v>2024-01-04</x:v></x:c><x:c r="D2"><x:f>50+7</x:f><x:v>57</x:v></x:c></x:row>' +
+        '</x:sheetData></x:worksheet>',
+    });
+    const r = await parseCertificateTable(bytes, {
+      format: 'xlsx',
+      today,
+      layout: loadMillLayout({
+        name: 'Hand-written',
+        millCode: 'KBW',
+        sheet: 'Jominy',
+        columns: { heat_number: 'Melt', C: 'C %', cast_date: 'Cast' },
+        distances: { unit: 'sixteenths', pattern: '^J(\\d+)$' },
+        defaults: { grade: '4140H' },
+      }),
+    });
+    expect(r.fileProblems).toEqual([]);
+    expect(r.items.map((i) => [i.key, i.problems])).toEqual([['KBW/K-9', []]]);
+    expect(r.items[0].certificate).toMatchObject({ castDate: '2024-01-04', chemistry: { C: 0.41 }, tests: [{ readings: [{ at: 1, hrc: 57 }] }] });
   });
 });
