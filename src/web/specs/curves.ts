@@ -12,12 +12,12 @@ export interface BandRow {
 
 export interface CurveRow {
   /** Which curve (a test, or a heat on the grade page). */
-  curve: string;
+  curve: string | number;
   /** Colour group: test source on the heat sheet, mill on the grade page. */
   group: string;
   heat: string;
   mm: number;
-  label: string;
+  label?: string;
   hrc: number;
   /** Outside the band at this reading. */
   outside?: boolean;
