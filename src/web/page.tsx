@@ -6,6 +6,9 @@ import { Chart } from './components/chart.tsx';
 import { Layout, type Section } from './components/layout.tsx';
 import { DataTable, type TableData } from './components/table.tsx';
 import { safeFileName, toCsv } from './csv.ts';
+import { AnalysisError } from '../analysis/errors.ts';
+import { Problem } from './components/bits.tsx';
+import { ParamError } from './params.ts';
 
 export interface PageResult {
   title: string;
@@ -75,7 +78,14 @@ const SECURITY_HEADERS = {
 
 export async function renderPage(c: Context<any>, handler: PageHandler): Promise<Response> {
   const kit = new PageKit(new URL(c.req.url));
-  const result = await handler(c, kit);
+  let result: PageResult | Response;
+  try {
+    result = await handler(c, kit);
+  } catch (error) {
+    // Too little data or a request the analysis cannot answer: say so on a page, not as an error.
+    if (!(error instanceof AnalysisError || error instanceof ParamError)) throw error;
+    result = { title: 'Cannot show this', section: 'mills', status: 422, body: <Problem message={error.message} /> };
+  }
   if (result instanceof Response) return result;
   const csvId = c.req.query('csv');
   if (csvId !== undefined) {

@@ -12,6 +12,7 @@ import { gradePage } from './pages/grade.tsx';
 import { trendsPage } from './pages/trends.tsx';
 import { capabilityPage } from './pages/capability.tsx';
 import { chemistryPage } from './pages/chemistry.tsx';
+import { bandTrialPage } from './pages/bandTrial.tsx';
 
 /** Page paths that take form posts; they refuse a post from another origin (hono/csrf checks Origin). */
 export const FORM_PATHS = ['/alerts/*', '/trends/*', '/chemistry/*', '/band-trial/*'];
@@ -30,4 +31,5 @@ export function webRoutes(app: Hono<any>, db: Db): void {
   trendsPage(app, db);
   capabilityPage(app, db);
   chemistryPage(app, db);
+  bandTrialPage(app, db);
 }

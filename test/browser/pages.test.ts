@@ -36,6 +36,11 @@ const PAGES: PageCase[] = [
   { name: 'heats', path: () => '/heats?grade=20MnCr5-D', minCharts: 0, caution: false },
   { name: 'heat-sheet', path: () => `/heats/${heatId}`, minCharts: 2, caution: true },
   { name: 'alerts', path: () => '/alerts', minCharts: 0, caution: true },
+  { name: 'grade', path: () => '/grades/20MnCr5-D', minCharts: 2, caution: true },
+  { name: 'trends', path: () => '/trends?grade=20MnCr5-D&mill=QUELLMARK&distance=7', minCharts: 4, caution: true },
+  { name: 'capability', path: () => '/capability?grade=4140-D&mill=VARNHOLT', minCharts: 3, caution: true },
+  { name: 'chemistry', path: () => '/chemistry?grade=20MnCr5-D', minCharts: 4, caution: true },
+  { name: 'band-trial', path: () => '/band-trial?grade=20MnCr5-D&run=1&at=1.5&min=41&max=48&at=7&min=30&max=40', minCharts: 2, caution: true },
 ];
 
 describe('pages on the demo data', () => {

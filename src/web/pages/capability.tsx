@@ -1,0 +1,180 @@
+// Capability: for a grade (one mill or all), Ppk at every band distance with its interval; for one
+// distance the histogram with the band limits and fitted normal, the normal probability plot, the
+// indices with their intervals, and the flags in plain words.
+import type { Hono } from 'hono';
+import type { Child } from 'hono/jsx';
+import type { Db } from '../../db/connection.ts';
+import { capabilityStudy, type DistanceCapability } from '../../analysis/capabilityStudy.ts';
+import { AnalysisError } from '../../analysis/errors.ts';
+import { loadSeriesCurves, pointsAt } from '../../analysis/seriesData.ts';
+import type { CapabilityResult } from '../../stats/capability.ts';
+import { Caution } from '../components/caution.tsx';
+import { Problem } from '../components/bits.tsx';
+import { SeriesForm } from '../components/seriesForm.tsx';
+import { readSeriesChoice, type SeriesChoice } from '../data/seriesPicker.ts';
+import { page } from '../page.tsx';
+import { fmt, mmLabel, ParamError } from '../params.ts';
+import { histogramSpec, pagePpkSpec, probabilityPlotSpec } from '../specs/capability.ts';
+
+/** The flags of a capability result, each in a sentence a buyer can act on. */
+export function flagSentences(r: CapabilityResult): string[] {
+  const out: string[] = [];
+  if (r.flags.smallSample) out.push(`Only ${r.n} heats: the indices are rough, as the width of their intervals shows. Wait for more heats before drawing conclusions.`);
+  if (r.flags.nonNormal) {
+    out.push(
+      `The values do not look normal (Anderson–Darling p = ${fmt(r.normality?.pValue ?? null, 3)}): the normal-based indices and expected PPM may mislead.${r.percentile ? ` The percentile-based Ppk, ${fmt(r.percentile.ppk)}, does not assume normality.` : ''}`,
+    );
+  }
+  if (r.flags.unstable) out.push(`${r.unstablePoints.length} heat(s) fall outside the individuals-chart limits: the process was not stable over this window, so a capability index describes a mixture, not one process. See Trends.`);
+  if (out.length === 0) out.push('No flag: enough heats, no sign of non-normality, and no heat outside the control limits.');
+  return out;
+}
+
+function indexRow(d: DistanceCapability, mill: string | null) {
+  const r = d.result;
+  return {
+    mill: mill ?? 'all',
+    distance: d.label ?? mmLabel(d.distanceMm),
+    mm: d.distanceMm,
+    lsl: d.lsl,
+    usl: d.usl,
+    n: d.n,
+    mean: r?.mean ?? null,
+    sigmaWithin: r?.sigmaWithin ?? null,
+    sigmaOverall: r?.sigmaOverall ?? null,
+    cp: r?.cp ?? null,
+    cpk: r?.cpk ?? null,
+    cpkLower: r?.intervals.cpk.lower ?? null,
+    cpkUpper: r?.intervals.cpk.upper ?? null,
+    pp: r?.pp ?? null,
+    ppk: r?.ppk ?? null,
+    ppkLower: r?.intervals.ppk.lower ?? null,
+    ppkUpper: r?.intervals.ppk.upper ?? null,
+    percentilePpk: r?.percentile?.ppk ?? null,
+    expectedPpm: r?.expectedPpm.overall.total ?? null,
+    observedPpm: r?.observedPpm.total ?? null,
+    adP: r?.normality?.pValue ?? null,
+    flags: r ? Object.entries(r.flags).filter(([, v]) => v).map(([k]) => k.replace(/([A-Z])/g, ' $1').toLowerCase()).join(', ') : (d.note ?? ''),
+  };
+}
+
+type IndexRow = ReturnType<typeof indexRow>;
+
+const INDEX_COLUMNS = [
+  { key: 'distance', label: 'Distance' },
+  { key: 'lsl', label: 'Band min', numeric: true },
+  { key: 'usl', label: 'Band max', numeric: true },
+  { key: 'n', label: 'n', numeric: true },
+  { key: 'mean', label: 'Mean', numeric: true, digits: 2 },
+  { key: 'sigmaWithin', label: 'σ within', numeric: true, digits: 3 },
+  { key: 'sigmaOverall', label: 'σ overall', numeric: true, digits: 3 },
+  { key: 'cp', label: 'Cp', numeric: true, digits: 2 },
+  { key: 'cpk', label: 'Cpk', numeric: true, digits: 2 },
+  { key: 'cpkInterval', label: 'Cpk 95%', htmlOnly: true, cell: (r: IndexRow) => (r.cpkLower === null ? '–' : `${fmt(r.cpkLower)} – ${fmt(r.cpkUpper)}`) },
+  { key: 'cpkLower', label: 'Cpk 95% low', csvOnly: true },
+  { key: 'cpkUpper', label: 'Cpk 95% high', csvOnly: true },
+  { key: 'pp', label: 'Pp', numeric: true, digits: 2 },
+  { key: 'ppk', label: 'Ppk', numeric: true, digits: 2 },
+  { key: 'ppkInterval', label: 'Ppk 95%', htmlOnly: true, cell: (r: IndexRow) => (r.ppkLower === null ? '–' : `${fmt(r.ppkLower)} – ${fmt(r.ppkUpper)}`) },
+  { key: 'ppkLower', label: 'Ppk 95% low', csvOnly: true },
+  { key: 'ppkUpper', label: 'Ppk 95% high', csvOnly: true },
+  { key: 'percentilePpk', label: 'Ppk (percentile)', numeric: true, digits: 2 },
+  { key: 'expectedPpm', label: 'Expected PPM', numeric: true, digits: 0 },
+  { key: 'observedPpm', label: 'Observed PPM', numeric: true, digits: 0 },
+  { key: 'adP', label: 'A–D p', numeric: true, digits: 3 },
+  { key: 'flags', label: 'Flags', wrap: true },
+];
+
+export function capabilityPage(app: Hono<any>, db: Db) {
+  page(app, '/capability', async (c, kit) => {
+    let choice: SeriesChoice;
+    try {
+      choice = await readSeriesChoice(c, db, { needMill: false });
+    } catch (error) {
+      if (error instanceof ParamError) return { title: 'Capability', section: 'capability', status: 400, body: <Problem message={error.message} /> };
+      throw error;
+    }
+    const mill = choice.mill || undefined;
+    const query = { grade: choice.grade, mill, from: choice.from, to: choice.to };
+    let study;
+    try {
+      study = await capabilityStudy(db, query);
+    } catch (error) {
+      if (!(error instanceof AnalysisError)) throw error;
+      return { title: 'Capability', section: 'capability', body: (<><h1>Capability</h1><SeriesForm action="/capability" choice={choice} anyMill /><Problem message={`No capability study: ${error.message}.`} /></>) as Child };
+    }
+    const chosen = study.distances.find((d) => choice.distanceMm !== null && Math.abs(d.distanceMm - choice.distanceMm) < 1e-6) ?? study.distances[0];
+    const values = chosen ? pointsAt(await loadSeriesCurves(db, { ...query, source: study.source }), chosen.distanceMm).map((p) => p.value) : [];
+    const r = chosen?.result ?? null;
+    const where = chosen ? (chosen.label ?? mmLabel(chosen.distanceMm)) : '';
+    const who = `${mill ?? 'all mills'} ${choice.grade}`;
+    const rows = study.distances.map((d) => indexRow(d, study.mill));
+    const perMillRows = (study.perMill ?? []).flatMap((m) => m.distances.map((d) => indexRow(d, m.mill)));
+    const valueRows = values.map((v, i) => ({ index: i + 1, hrc: v }));
+    return {
+      title: 'Capability',
+      section: 'capability',
+      body: (
+        <>
+          <h1>Capability</h1>
+          <p class="lead">How well does the supply fit the band? Indices against the band in force at the end of the window (version {study.band.version}, from {study.band.effectiveFrom}), {study.heats} heat(s).</p>
+          <SeriesForm action="/capability" choice={choice} anyMill />
+          <Caution>Capability indices describe the supply as a whole; they neither accept nor reject a heat. Acceptance follows the purchase specification and qualified personnel; statistics do not replace testing.</Caution>
+          {kit.chart({
+            id: 'ppk',
+            title: `Ppk by distance: ${who}`,
+            note: 'Point: Ppk; bar: its 95% interval (Bissell 1990); dashed line: 1.33.',
+            spec: pagePpkSpec(study),
+            table: { columns: INDEX_COLUMNS, rows },
+            openUpTo: 40,
+          })}
+          {chosen && r ? (
+            <>
+              <h2>At {where}</h2>
+              <div class="card">
+                <p>
+                  <strong>What the flags say.</strong>
+                </p>
+                <ul class="flags">
+                  {flagSentences(r).map((s) => (
+                    <li>{s}</li>
+                  ))}
+                </ul>
+                <p>
+                  Ppk {fmt(r.ppk)} (95% interval {fmt(r.intervals.ppk.lower)} – {fmt(r.intervals.ppk.upper)}), Cpk {fmt(r.cpk)} ({fmt(r.intervals.cpk.lower)} – {fmt(r.intervals.cpk.upper)}); expected {fmt(r.expectedPpm.overall.total, 0)} PPM
+                  outside the band, observed {fmt(r.observedPpm.total, 0)} PPM.
+                </p>
+              </div>
+              <div class="grid2">
+                {kit.chart({
+                  id: 'histogram',
+                  title: `Histogram at ${where}: ${who}`,
+                  note: 'Bars: heats per hardness bin; line: the fitted normal (mean and overall σ); dashed: band limits.',
+                  spec: histogramSpec(values, { mean: r.mean, sd: r.sigmaOverall }, { lsl: chosen.lsl, usl: chosen.usl }, `Histogram at ${where}`),
+                  table: { columns: [{ key: 'index', label: '#', numeric: true }, { key: 'hrc', label: 'HRC', numeric: true }], rows: valueRows },
+                  openUpTo: 0,
+                })}
+                {kit.chart({
+                  id: 'probability',
+                  title: `Normal probability plot at ${where}`,
+                  note: 'Points near the dashed line look normal; a bend or S-shape means skew or heavy tails.',
+                  spec: probabilityPlotSpec(values, { mean: r.mean, sd: r.sigmaOverall }, `Normal probability plot at ${where}`),
+                  table: { columns: [{ key: 'index', label: '#', numeric: true }, { key: 'hrc', label: 'HRC', numeric: true }], rows: valueRows },
+                  openUpTo: 0,
+                })}
+              </div>
+            </>
+          ) : (
+            <p class="notice">No capability result at this distance: {chosen?.note ?? 'no data'}.</p>
+          )}
+          {perMillRows.length ? (
+            <>
+              <h2>Per mill</h2>
+              {kit.table('per-mill', `Capability per mill ${choice.grade}`, { columns: [{ key: 'mill', label: 'Mill' }, ...INDEX_COLUMNS], rows: perMillRows })}
+            </>
+          ) : null}
+        </>
+      ),
+    };
+  });
+}

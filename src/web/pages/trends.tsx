@@ -1,0 +1,233 @@
+// Trends: individuals, EWMA and CUSUM charts at a distance and Hotelling T² on the whole curve, with
+// their limits, the baseline window shaded, signals labelled with their rule, and a form to freeze a
+// baseline from a chosen window.
+import type { Context, Hono } from 'hono';
+import type { Child } from 'hono/jsx';
+import type { Db } from '../../db/connection.ts';
+import { controlChart, type ChartKind, type ControlChart } from '../../analysis/controlCharts.ts';
+import { baselinesOnFile, freezeBaselines } from '../../analysis/baselines.ts';
+import { AnalysisError } from '../../analysis/errors.ts';
+import { Caution } from '../components/caution.tsx';
+import { Problem } from '../components/bits.tsx';
+import { SeriesForm } from '../components/seriesForm.tsx';
+import { readSeriesChoice, type SeriesChoice } from '../data/seriesPicker.ts';
+import { page, type PageKit } from '../page.tsx';
+import { fmt, mmLabel, optionalDate, optionalNumber, ParamError, query } from '../params.ts';
+import { pageControlChartSpec, shortRule } from '../specs/controlChart.ts';
+
+const KINDS: Array<{ kind: ChartKind; title: string; explain: string }> = [
+  { kind: 'individuals', title: 'Individuals', explain: 'Each heat’s hardness with the centre line and 3-sigma limits (sigma from the average moving range); points labelled N1–N8 break a Nelson rule, MR a moving-range limit.' },
+  { kind: 'ewma', title: 'EWMA', explain: 'Exponentially weighted moving average (λ = 0.2) with its exact time-varying limits: slow drifts show here first.' },
+  { kind: 'cusum', title: 'CUSUM', explain: 'Tabular CUSUM in sigma units (k = 0.5, h = 5): the upper sum climbs when the mean moves up, the lower (drawn below zero) when it moves down.' },
+  { kind: 't2', title: 'Hotelling T²', explain: 'The whole curve at once: T² grows when a curve departs from the usual shape or level, even if no single distance does.' },
+];
+
+function originText(chart: ControlChart): string {
+  const o = chart.limitsFrom;
+  if (o.type === 'frozen_baseline') return `Limits from frozen baseline #${o.baselineId}: heats cast ${o.window.from} to ${o.window.to}, frozen by ${o.createdBy ?? 'unknown'}${o.reason ? ` (“${o.reason}”)` : ''}. Shaded: the baseline window.`;
+  return `Limits from phase I on the heats shown (trial limits, points beyond them set aside${o.excludedHeats.length ? `: ${o.excludedHeats.length} heat(s)` : ''}). No baseline is frozen for this series.`;
+}
+
+function chartBlock(kit: PageKit, chart: ControlChart, title: string, explain: string): Child {
+  const rules = new Map<number, string[]>();
+  for (const s of chart.signals) for (const i of s.points) rules.set(i, [...(rules.get(i) ?? []), shortRule(s.rule)]);
+  const rows = chart.points.map((p) => ({
+    index: p.index + 1,
+    heatId: p.heatId,
+    heat: p.heatNumber,
+    castDate: p.castDate,
+    value: p.value,
+    plotted: p.plotted,
+    lower: p.plottedLower ?? null,
+    lcl: p.lcl,
+    ucl: p.ucl,
+    phase: p.phase,
+    signals: (rules.get(p.index) ?? []).join(' '),
+  }));
+  return kit.chart({
+    id: chart.kind,
+    title: `${title}: ${chart.mill} ${chart.grade}${chart.kind === 't2' ? ', whole curve' : `, ${chart.label ?? mmLabel(chart.distanceMm ?? 0)}`}`,
+    note: (
+      <>
+        {explain} <span class="origin">{originText(chart)}</span>
+      </>
+    ),
+    spec: pageControlChartSpec(chart),
+    table: {
+      columns: [
+        { key: 'index', label: '#', numeric: true },
+        { key: 'heat', label: 'Heat', cell: (r: (typeof rows)[number]) => <a href={`/heats/${r.heatId}`}>{r.heat}</a> },
+        { key: 'castDate', label: 'Cast' },
+        { key: 'value', label: chart.kind === 't2' ? 'T²' : 'HRC', numeric: true, digits: 2 },
+        { key: 'plotted', label: chart.kind === 'cusum' ? 'C+ (σ)' : chart.kind === 'ewma' ? 'EWMA' : 'Plotted', numeric: true, digits: 2 },
+        ...(chart.kind === 'cusum' ? [{ key: 'lower', label: 'C− (σ, negated)', numeric: true, digits: 2 }] : []),
+        { key: 'lcl', label: 'LCL', numeric: true, digits: 2 },
+        { key: 'ucl', label: 'UCL', numeric: true, digits: 2 },
+        { key: 'phase', label: 'Phase' },
+        { key: 'signals', label: 'Signals' },
+      ],
+      rows,
+    },
+    openUpTo: 0,
+  });
+}
+
+function BaselineForm(props: { choice: SeriesChoice; from: string; to: string }) {
+  const c = props.choice;
+  return (
+    <form class="filters stack" method="post" action="/trends/baseline" id="freeze-baseline">
+      <input type="hidden" name="grade" value={c.grade} />
+      <input type="hidden" name="mill" value={c.mill} />
+      <input type="hidden" name="distance" value={c.distanceMm === null ? '' : String(c.distanceMm)} />
+      <input type="hidden" name="viewFrom" value={c.from ?? ''} />
+      <input type="hidden" name="viewTo" value={c.to ?? ''} />
+      <label>
+        Baseline cast from
+        <input type="date" name="from" value={props.from} required />
+      </label>
+      <label>
+        Baseline cast to
+        <input type="date" name="to" value={props.to} required />
+      </label>
+      <label>
+        Distances
+        <select name="scope">
+          <option value="band">every band distance</option>
+          <option value="one">only {c.distances.find((d) => d.mm === c.distanceMm)?.label ?? 'this distance'}</option>
+        </select>
+      </label>
+      <label>
+        Why (kept with the baseline)
+        <input type="text" name="reason" required maxlength={500} placeholder="e.g. stable run after mill audit" />
+      </label>
+      <button type="submit" class="primary">
+        Freeze baseline
+      </button>
+    </form>
+  );
+}
+
+export function trendsPage(app: Hono<any>, db: Db) {
+  page(app, '/trends', async (c, kit) => {
+    let choice: SeriesChoice;
+    try {
+      choice = await readSeriesChoice(c, db);
+    } catch (error) {
+      if (error instanceof ParamError) return { title: 'Trends', section: 'trends', status: 400, body: <Problem message={error.message} /> };
+      throw error;
+    }
+    const done = c.req.query('done');
+    const blocks: Child[] = [];
+    const charts: ControlChart[] = [];
+    for (const k of KINDS) {
+      if (k.kind !== 't2' && choice.distanceMm === null) continue;
+      try {
+        const chart = await controlChart(db, { kind: k.kind, grade: choice.grade, mill: choice.mill, distanceMm: choice.distanceMm ?? undefined, from: choice.from, to: choice.to });
+        charts.push(chart);
+        blocks.push(
+          <>
+            <h2>{k.title}</h2>
+            {chartBlock(kit, chart, k.title, k.explain)}
+          </>,
+        );
+      } catch (error) {
+        if (!(error instanceof AnalysisError)) throw error;
+        blocks.push(
+          <>
+            <h2>{k.title}</h2>
+            <p class="notice">No {k.title} chart: {error.message}.</p>
+          </>,
+        );
+      }
+    }
+    const signals = charts.flatMap((ch) => ch.signals.map((s) => ({ chart: ch.kind, rule: s.rule, short: shortRule(s.rule), description: s.description, count: s.points.length, heats: s.heats.join(', ') })));
+    const baselines = await baselinesOnFile(db, { grade: choice.grade, mill: choice.mill });
+    const first = charts[0]?.points;
+    const defaultFrom = choice.from ?? first?.[0]?.castDate ?? '';
+    const defaultTo = first && first.length ? first[Math.min(first.length - 1, Math.max(19, Math.floor(first.length / 3)))].castDate : (choice.to ?? '');
+    return {
+      title: 'Trends',
+      section: 'trends',
+      body: (
+        <>
+          <h1>Trends</h1>
+          <p class="lead">Is the mill's supply of this grade stable? Control charts of one mill's series in cast order.</p>
+          <SeriesForm action="/trends" choice={choice} />
+          {done ? (
+            <p class="notice" role="status" id="done">
+              {done}
+            </p>
+          ) : null}
+          <Caution>A signal says the process changed, not that a heat is bad: talk with the mill and look at the heat sheet. Acceptance follows the purchase specification and qualified personnel.</Caution>
+          {blocks}
+          <h2>Signals</h2>
+          {kit.table('signals', `Signals ${choice.mill} ${choice.grade}`, {
+            columns: [
+              { key: 'chart', label: 'Chart' },
+              { key: 'short', label: 'Label' },
+              { key: 'rule', label: 'Rule' },
+              { key: 'description', label: 'Meaning', wrap: true },
+              { key: 'count', label: 'Points', numeric: true },
+              { key: 'heats', label: 'Heats', wrap: true },
+            ],
+            rows: signals,
+          })}
+          <h2>Freeze a baseline</h2>
+          <p>
+            Pick a window of heats that ran as the mill should; its limits are estimated (phase I, points beyond the trial limits set aside) and frozen, and later heats are judged against them. A new baseline retires
+            the previous one of the same distance.
+          </p>
+          <BaselineForm choice={choice} from={defaultFrom} to={defaultTo} />
+          <h3>Baselines on file</h3>
+          {kit.table('baselines', `Baselines ${choice.mill} ${choice.grade}`, {
+            columns: [
+              { key: 'id', label: 'Baseline', numeric: true },
+              { key: 'distanceMm', label: 'mm', numeric: true },
+              { key: 'source', label: 'Source' },
+              { key: 'windowFrom', label: 'From' },
+              { key: 'windowTo', label: 'To' },
+              { key: 'centre', label: 'Centre HRC', numeric: true, digits: 2 },
+              { key: 'sigma', label: 'Sigma', numeric: true, digits: 3 },
+              { key: 'reason', label: 'Why', wrap: true },
+              { key: 'createdBy', label: 'By' },
+              { key: 'createdAt', label: 'Frozen' },
+            ],
+            rows: baselines.map((b) => {
+              const l = b.limits as { center?: number; centre?: number; sigma?: number };
+              return { ...b, centre: l.center ?? l.centre ?? null, sigma: l.sigma ?? null, createdAt: b.createdAt.slice(0, 16).replace('T', ' ') };
+            }),
+          })}
+        </>
+      ),
+    };
+  });
+
+  app.post('/trends/baseline', async (c: Context<any>) => {
+    const form = await c.req.parseBody();
+    const text = (k: string) => (typeof form[k] === 'string' ? (form[k] as string).trim() : '');
+    const view = { grade: text('grade'), mill: text('mill'), distance: text('distance'), from: text('viewFrom'), to: text('viewTo') };
+    const back = (message: string) => c.redirect(`/trends${query({ ...view, done: message })}#done`, 303);
+    try {
+      const from = optionalDate(text('from'), 'The baseline start');
+      const to = optionalDate(text('to'), 'The baseline end');
+      const distance = optionalNumber(text('distance'), 'The distance', { min: 0 });
+      if (!from || !to) throw new ParamError('The baseline needs a start and an end date.');
+      if (!text('reason')) throw new ParamError('Say why this window is a fair baseline.');
+      const by = (c.get('auth') as { name?: string } | undefined)?.name ?? 'web';
+      const result = await freezeBaselines(db, {
+        grade: view.grade,
+        mill: view.mill,
+        from,
+        to,
+        reason: text('reason').slice(0, 500),
+        createdBy: by,
+        distancesMm: text('scope') === 'one' && distance !== undefined ? [distance] : undefined,
+      });
+      const skipped = result.skipped.length ? ` Not frozen: ${result.skipped.map((s) => `${fmt(s.distanceMm, 1)} mm (${s.reason})`).join('; ')}.` : '';
+      return back(`Baseline frozen for ${result.baselines.length} distance(s) from heats cast ${from} to ${to}.${skipped}`);
+    } catch (error) {
+      if (error instanceof ParamError || error instanceof AnalysisError) return back(`Nothing frozen: ${error.message}`);
+      throw error;
+    }
+  });
+}
