@@ -94,7 +94,7 @@ function TrialForm(props: { choice: SeriesChoice; points: ProposedPoint[]; mills
         <button type="submit" class="primary">
           Replay history
         </button>{' '}
-        <a href={`/band-trial?grade=${encodeURIComponent(c.grade)}`}>Start again from the band in force</a>
+        <a href={`/band-trial?grade=${encodeURIComponent(c.grade)}`}>Start again from the band in force</a> (the window starts as the last two years; clear nothing and set an earlier start for more history)
       </p>
     </form>
   );
@@ -146,7 +146,8 @@ function results(result: BandTrialResult, kit: Parameters<Parameters<typeof page
         {kit.chart({ id: 'failing', title: `Heats that would fail: ${result.grade}`, spec: failingShareSpec(shareRows), table: { columns: [{ key: 'mill', label: 'Mill' }, { key: 'band', label: 'Band' }, { key: 'failing', label: 'Failing', numeric: true }, { key: 'heats', label: 'Heats', numeric: true }, { key: 'share', label: 'Share', numeric: true, digits: 4 }], rows: shareRows } })}
         {kit.chart({ id: 'bands', title: `Proposed band against the band in force: ${result.grade}`, note: 'Solid: maximum; dashed: minimum.', spec: bandsSpec(bandRows), table: { columns: [{ key: 'band', label: 'Band' }, { key: 'label', label: 'Distance' }, { key: 'min', label: 'Min HRC', numeric: true }, { key: 'max', label: 'Max HRC', numeric: true }], rows: bandRows } })}
       </div>
-      <h3>Per distance under the proposal</h3>
+      <details class="more">
+        <summary>Per distance under the proposal ({perDistance.length} rows)</summary>
       {kit.table('per-distance', `Band trial ${result.grade} per distance`, {
         columns: [
           { key: 'mill', label: 'Mill' },
@@ -160,7 +161,9 @@ function results(result: BandTrialResult, kit: Parameters<Parameters<typeof page
         ],
         rows: perDistance,
       })}
-      <h3>Tightest band each mill held</h3>
+      </details>
+      <details class="more">
+        <summary>Tightest band each mill held ({suggestions.length} rows)</summary>
       {kit.table('suggested', `Band trial ${result.grade} tightest band held`, {
         columns: [
           { key: 'mill', label: 'Mill' },
@@ -172,7 +175,9 @@ function results(result: BandTrialResult, kit: Parameters<Parameters<typeof page
         ],
         rows: suggestions,
       })}
-      <h3>Heats that would fail</h3>
+      </details>
+      <details class="more">
+        <summary>Heats that would fail under the proposal ({failing.length})</summary>
       {kit.table('failing-heats', `Band trial ${result.grade} failing heats`, {
         columns: [
           { key: 'mill', label: 'Mill' },
@@ -182,6 +187,7 @@ function results(result: BandTrialResult, kit: Parameters<Parameters<typeof page
         ],
         rows: failing,
       })}
+      </details>
     </section>
   );
 }
@@ -190,7 +196,7 @@ export function bandTrialPage(app: Hono<any>, db: Db) {
   page(app, '/band-trial', async (c, kit) => {
     let choice: SeriesChoice;
     try {
-      choice = await readSeriesChoice(c, db, { needMill: false });
+      choice = await readSeriesChoice(c, db, { needMill: false, defaultDays: 730 });
     } catch (error) {
       if (error instanceof ParamError) return { title: 'Band trial', section: 'trial', status: 400, body: <Problem message={error.message} /> };
       throw error;

@@ -14,16 +14,18 @@ import { SeriesForm } from '../components/seriesForm.tsx';
 import { readSeriesChoice, type SeriesChoice } from '../data/seriesPicker.ts';
 import { page } from '../page.tsx';
 import { fmt, mmLabel, ParamError } from '../params.ts';
-import { histogramSpec, pagePpkSpec, probabilityPlotSpec } from '../specs/capability.ts';
+import { histogramSpec, pagePpkSpec, probabilityPlotSpec, readingStep } from '../specs/capability.ts';
 
 /** The flags of a capability result, each in a sentence a buyer can act on. */
-export function flagSentences(r: CapabilityResult): string[] {
+export function flagSentences(r: CapabilityResult, values: readonly number[] = []): string[] {
   const out: string[] = [];
+  const step = values.length ? readingStep(values) : null;
   if (r.flags.smallSample) out.push(`Only ${r.n} heats: the indices are rough, as the width of their intervals shows. Wait for more heats before drawing conclusions.`);
   if (r.flags.nonNormal) {
     out.push(
       `The values do not look normal (Anderson–Darling p = ${fmt(r.normality?.pValue ?? null, 3)}): the normal-based indices and expected PPM may mislead.${r.percentile ? ` The percentile-based Ppk, ${fmt(r.percentile.ppk)}, does not assume normality.` : ''}`,
     );
+    if (step !== null && step >= 0.5) out.push(`Every reading is a multiple of ${step} HRC: rounding alone makes a normality test reject in a long series, so judge the shape from the probability plot (a staircase there is the rounding, a bend is not).`);
   }
   if (r.flags.unstable) out.push(`${r.unstablePoints.length} heat(s) fall outside the individuals-chart limits: the process was not stable over this window, so a capability index describes a mixture, not one process. See Trends.`);
   if (out.length === 0) out.push('No flag: enough heats, no sign of non-normality, and no heat outside the control limits.');
@@ -136,7 +138,7 @@ export function capabilityPage(app: Hono<any>, db: Db) {
                   <strong>What the flags say.</strong>
                 </p>
                 <ul class="flags">
-                  {flagSentences(r).map((s) => (
+                  {flagSentences(r, values).map((s) => (
                     <li>{s}</li>
                   ))}
                 </ul>

@@ -13,10 +13,20 @@ export interface HistogramBin {
   count: number;
 }
 
-/** Bin width: 1 HRC, or 0.5 HRC for a narrow spread (hardness is read to 0.5 or 1 HRC). */
+/** The step the readings were reported in: 1 HRC when all are whole, 0.5 when all are halves, else 0.1. */
+export function readingStep(values: readonly number[]): number {
+  const on = (step: number) => values.every((v) => Math.abs(v / step - Math.round(v / step)) < 1e-9);
+  return on(1) ? 1 : on(0.5) ? 0.5 : 0.1;
+}
+
+/** Bin width: the reading step (so no bin falls between two possible readings), widened to whole
+ * multiples of it until there are at most 30 bins. */
 export function binWidth(values: readonly number[]): number {
+  const step = readingStep(values);
   const span = Math.max(...values) - Math.min(...values);
-  return span < 6 ? 0.5 : 1;
+  let width = step;
+  while (span / width > 30) width += step;
+  return width;
 }
 
 /** Counts in bins of a fixed width, aligned on multiples of the width and centred on them. */

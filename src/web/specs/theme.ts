@@ -26,7 +26,7 @@ const CONFIG = {
   font: 'system-ui, -apple-system, Segoe UI, Roboto, sans-serif',
   view: { stroke: null },
   axis: { gridColor: PALETTE.grid, labelFontSize: 11, titleFontSize: 12, titleFontWeight: 600 },
-  legend: { labelFontSize: 11, titleFontSize: 12, orient: 'bottom', direction: 'horizontal', columns: 3, labelLimit: 160 },
+  legend: { labelFontSize: 11, titleFontSize: 12, orient: 'bottom', direction: 'horizontal', columns: 3, labelLimit: 280 },
   range: { category: [...CATEGORY_COLOURS] },
   point: { filled: true, size: 40 },
   line: { strokeWidth: 1.6 },
