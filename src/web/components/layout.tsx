@@ -22,6 +22,7 @@ export function Layout(props: { title: string; section: Section; charts: boolean
         <meta charset="utf-8" />
         <meta name="viewport" content="width=device-width, initial-scale=1" />
         <title>{`${props.title} · endquench`}</title>
+        <link rel="icon" href="data:," />
         <link rel="stylesheet" href={asset('site.css').href} />
         {props.charts ? CHART_SCRIPTS.map((name) => <script defer src={asset(name).href}></script>) : null}
       </head>

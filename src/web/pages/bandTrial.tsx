@@ -94,7 +94,7 @@ function TrialForm(props: { choice: SeriesChoice; points: ProposedPoint[]; mills
         <button type="submit" class="primary">
           Replay history
         </button>{' '}
-        <a href={`/band-trial?grade=${encodeURIComponent(c.grade)}`}>Start again from the band in force</a> (the window starts as the last two years; clear nothing and set an earlier start for more history)
+        <a href={`/band-trial?grade=${encodeURIComponent(c.grade)}`}>Start again from the band in force</a> (the window starts two years back; set an earlier start for more history)
       </p>
     </form>
   );

@@ -58,7 +58,7 @@ export function gradePage(app: Hono<any>, db: Db) {
       body: (
         <>
           <h1>Grade {grade.code}</h1>
-          <p class="lead">{grade.description ?? ''} Every certificate curve of the window over the band in force; the band's versions below.</p>
+          <p class="lead">{grade.description ? `${grade.description.replace(/\.?$/, '.')} ` : ''}Every certificate curve of the window over the band in force; the band's versions below.</p>
           <form class="filters" method="get" action={`/grades/${encodeURIComponent(grade.code)}`}>
             <Select name="mill" label="Mill" value={mill} any="All mills" options={mills.map((m) => ({ value: m.code, label: m.code }))} />
             <WindowInputs from={window.from} to={window.to} />

@@ -133,7 +133,7 @@ export async function heatSheet(db: Db, heat: HeatDetail, kit: PageKit): Promise
         title: `End-quench curves of ${heat.heatNumber}`,
         note: (
           <>
-            Shaded blue: the band; dashed blue: its limits. Coloured lines: the tests of the current certificate and re-tests; a triangle marks a reading outside the band. Amber: the predicted curve
+            Shaded blue: the band; dashed blue: its limits. Coloured lines: the tests of the current certificate and re-tests; a triangle marks a reading outside the band. Purple, dotted: the predicted curve
             {prediction?.points.some((p) => p.lower !== null) ? ` with its ${Math.round((prediction?.level ?? 0.95) * 100)}% prediction interval` : ''}.
           </>
         ),

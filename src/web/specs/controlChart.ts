@@ -14,8 +14,13 @@ export function shortRule(rule: string): string {
 
 export function pageControlChartSpec(chart: ControlChart, height = 240): VegaLiteSpec {
   const base = controlChartSpec(chart, { height });
+  // Each rule is labelled at the first point of every run of consecutive signalling points, so a long
+  // EWMA or CUSUM excursion carries one label, not one per heat.
   const short = new Map<number, string[]>();
-  for (const s of chart.signals) for (const i of s.points) short.set(i + 1, [...(short.get(i + 1) ?? []), shortRule(s.rule)]);
+  for (const s of chart.signals) {
+    const fired = new Set(s.points);
+    for (const i of s.points) if (!fired.has(i - 1)) short.set(i + 1, [...(short.get(i + 1) ?? []), shortRule(s.rule)]);
+  }
   const data = base.data as { values: Array<Record<string, unknown>> };
   const values = data.values.map((v) => ({ ...v, ruleLabel: (short.get(v.index as number) ?? []).join(' ') }));
   const layers = [...(base.layer as Record<string, unknown>[])];

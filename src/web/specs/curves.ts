@@ -40,10 +40,12 @@ export interface CurvesSpecOptions {
 }
 
 const X = { field: 'mm', type: 'quantitative', title: 'Distance from the quenched end (mm)', scale: { zero: true } };
-const Y = { type: 'quantitative', title: 'Hardness (HRC)', scale: { zero: false } };
+const BASE_Y: Record<string, unknown> = { type: 'quantitative', title: 'Hardness (HRC)', scale: { zero: false } };
 
 export function curvesSpec(band: readonly BandRow[], curves: readonly CurveRow[], predicted: readonly PredictedRow[] | null, options: CurvesSpecOptions): VegaLiteSpec {
   const layers: Record<string, unknown>[] = [];
+  // Hardness below 0 HRC does not exist: a prediction interval reaching below it is cut at the axis.
+  const Y = (predicted ?? []).some((p) => p.lower !== null && p.lower < 0) ? { ...BASE_Y, scale: { zero: false, domainMin: 0 } } : BASE_Y;
   const twoSided = band.filter((b) => b.min !== null && b.max !== null);
   if (twoSided.length >= 2) {
     layers.push({ data: { name: 'band' }, transform: [{ filter: 'datum.min != null && datum.max != null' }], mark: { type: 'area', color: PALETTE.bandFill, opacity: 0.9 }, encoding: { x: X, y: { field: 'min', ...Y }, y2: { field: 'max' } } });
@@ -70,13 +72,13 @@ export function curvesSpec(band: readonly BandRow[], curves: readonly CurveRow[]
       layers.push({
         data: { name: 'predicted' },
         transform: [{ filter: 'datum.lower != null && datum.upper != null' }],
-        mark: { type: 'area', color: PALETTE.amber, opacity: 0.22 },
+        mark: { type: 'area', color: PALETTE.plum, opacity: 0.16, clip: true },
         encoding: { x: X, y: { field: 'lower', ...Y }, y2: { field: 'upper' } },
       });
     }
     layers.push({
       data: { name: 'predicted' },
-      mark: { type: 'line', color: PALETTE.amber, strokeWidth: 2.2, strokeDash: [2, 2] },
+      mark: { type: 'line', color: PALETTE.plum, strokeWidth: 2.2, strokeDash: [2, 2] },
       encoding: {
         x: X,
         y: { field: 'hrc', ...Y },
@@ -89,7 +91,7 @@ export function curvesSpec(band: readonly BandRow[], curves: readonly CurveRow[]
       },
     });
   }
-  const colour = { field: 'group', type: 'nominal', title: options.groupTitle ?? 'Curve' };
+  const colour = { field: 'group', type: 'nominal', title: options.groupTitle ?? 'Curve', legend: { columns: options.many ? 3 : 1 } };
   layers.push({
     data: { name: 'curves' },
     mark: options.many ? { type: 'line', strokeWidth: 1, opacity: 0.35 } : { type: 'line', strokeWidth: 2 },
@@ -97,12 +99,13 @@ export function curvesSpec(band: readonly BandRow[], curves: readonly CurveRow[]
   });
   layers.push({
     data: { name: 'curves' },
-    mark: { type: 'point', filled: true, size: options.many ? 14 : 45, opacity: options.many ? 0.5 : 1 },
+    mark: { type: 'point', filled: true, opacity: options.many ? 0.5 : 1 },
     encoding: {
+      size: { condition: { test: 'datum.outside', value: options.many ? 60 : 130 }, value: options.many ? 14 : 40 },
       x: X,
       y: { field: 'hrc', ...Y },
       color: colour,
-      shape: { field: 'outside', type: 'nominal', title: 'Outside band', scale: { domain: [false, true], range: ['circle', 'triangle-up'] } },
+      shape: { field: 'outside', type: 'nominal', title: 'Reading', scale: { domain: [false, true], range: ['circle', 'triangle-up'] }, legend: { labelExpr: "datum.label == 'true' ? 'outside the band' : 'inside the band'" } },
       tooltip: [
         { field: 'heat', title: 'Heat' },
         { field: 'curve', title: 'Curve' },
