@@ -5,6 +5,7 @@ import { sql } from 'drizzle-orm';
 import { rowsOf, type Db } from '../src/db/connection.ts';
 import { addBandVersion, listBands, upsertGrade, upsertMill } from '../src/db/referenceData.ts';
 import { runImport, type ImportReport } from '../src/ingest/importPipeline.ts';
+import { runIngestRules } from '../src/alerts/rules/index.ts';
 import { DEFAULT_DEMO_SEED, generateDemo, type DemoData, type DemoStories } from './generate.ts';
 
 /** Certificates per import batch: a few large batches keep the load fast. */
@@ -111,6 +112,8 @@ export async function loadDemo(db: Db, options: LoadDemoOptions = {}): Promise<D
       format: 'json',
       filename: `demo-certificates-${seed}-${i / batchSize + 1}.json`,
       createdBy: 'demo',
+      // The alert rules run in each batch's transaction, as for any import.
+      afterWrite: runIngestRules,
     });
     assertWritten(report, 'certificates');
     tally(report);
@@ -122,6 +125,8 @@ export async function loadDemo(db: Db, options: LoadDemoOptions = {}): Promise<D
       format: 'json',
       filename: `demo-receiving-tests-${seed}.json`,
       createdBy: 'demo',
+      // The alert rules run in each batch's transaction, as for any import.
+      afterWrite: runIngestRules,
     });
     assertWritten(report, 'receiving tests');
     tally(report);

@@ -1,0 +1,147 @@
+// Settings of the statistical alert rules run in the ingest transaction, with their defaults. Sources of
+// the methods are named in each rule's file; docs/access-and-alerts.md ("Rules") explains the choices.
+//
+// How the defaults were chosen: a chart is evaluated per mill x grade x band distance, so a plant with
+// 12 series and 13 to 19 band distances watches ~200 charts at once, and each chart's in-control
+// false-alarm rate is multiplied by that (a heat whose whole curve is high fires at most distances at
+// once). The defaults are EWMA and CUSUM with long in-control run lengths (ARL0 several thousand heats
+// per chart) that still find a one-sigma shift within about 17 heats; the Nelson rules (1, 2, 3 and 5
+// when switched on) are off by default because on the demo plant they fired on 8 of its 9 touched series
+// within one import of 1,250 certificates, with no story behind most of them. docs/access-and-alerts.md
+// gives the counts. ENDQUENCH_ALERT_SETTINGS (JSON, same shape as AlertSettingsOverride) overrides them.
+import type { NelsonRule } from '../../stats/nelsonRules.ts';
+import type { SeriesSource } from '../../db/series.ts';
+
+export interface ReferenceSettings {
+  /** Phase I (no frozen baseline) uses at most this many heats just before the first new one. */
+  maxHeats: number;
+  /** ... and at least this many; with fewer, no limits are estimated and the rule is silent. */
+  minHeats: number;
+}
+
+export interface AlertRuleSettings {
+  /** Test sources charted: each is its own series (cause keys name it). */
+  sources: Exclude<SeriesSource, never>[];
+  /** History loaded before the earliest new cast date (days): phase I, copies and rolling Ppk use it. */
+  historyDays: number;
+  reference: ReferenceSettings;
+  /**
+   * One cause per chart rule and mill x grade x source, listing the band distances that fired (default),
+   * or one per distance as well. A heat whose whole curve is high fires at most distances at once: with
+   * a cause per distance it would raise one alert per distance for one cause.
+   */
+  causePerDistance: boolean;
+  nelson: { enabled: boolean; rules: NelsonRule[] };
+  ewma: { enabled: boolean; lambda: number; L: number };
+  cusum: { enabled: boolean; k: number; h: number; headStart: number };
+  t2: { enabled: boolean; alpha: number };
+  certificate: {
+    /**
+     * 'chemistry': the alert needs the chemistry repeated exactly (with or without the curve);
+     * 'curve_or_chemistry': an exactly repeated curve alone is enough.
+     */
+    copies: { enabled: boolean; windowDays: number; needs: 'chemistry' | 'curve_or_chemistry' };
+    martensite: { enabled: boolean; toleranceHrc: number };
+    prediction: { enabled: boolean; failZ: number; minDistances: number };
+  };
+  /**
+   * confidence: the alert needs the one-sided upper confidence bound of Ppk (Bissell 1990) below minPpk,
+   * so that sampling scatter of a 50-heat estimate alone does not raise it; null: the estimate itself.
+   */
+  capability: { enabled: boolean; windowHeats: number; minPpk: number; confidence: number | null };
+}
+
+/** The defaults (see the header and docs/access-and-alerts.md for why). */
+export const DEFAULT_ALERT_SETTINGS: AlertRuleSettings = Object.freeze({
+  // The mill's own certificates are its process; receiving re-tests are too sparse to chart by default.
+  sources: ['mill_certificate'],
+  historyDays: 730,
+  // Quesenberry (1993, J. Quality Technology 25:237-247) shows individuals limits estimated from fewer
+  // than about 100 points give false-alarm rates well above nominal; 30 is our floor for trying at all.
+  reference: { maxHeats: 100, minHeats: 30 },
+  causePerDistance: false,
+  // Nelson (1984) rules 1, 2, 3 and 5 when enabled: a point beyond 3 sigma, nine in a row on one side, a
+  // trend of six, two of three beyond 2 sigma (the zone rules 6-8 and rule 4 stay on the Trends page).
+  nelson: { enabled: false, rules: [1, 2, 3, 5] },
+  // Lucas & Saccucci (1990, Technometrics 32:1-12) tabulate lambda 0.1, L = 2.814: ARL0 500, one-sigma
+  // shift found in 10.3. lambda 0.05 with L = 3.5 gives ARL0 about 6,450 and 16.7 for a one-sigma shift
+  // (Markov-chain approximation of Brook & Evans 1972, Biometrika 59:539-549; our computation).
+  ewma: { enabled: true, lambda: 0.05, L: 3.5 },
+  // Page (1954) / Lucas & Crosier (1982): k = 0.5 tuned to a one-sigma shift. h = 5 gives a two-sided
+  // ARL0 of 465 (Montgomery §9.1); h = 8 gives about 9,500 and 16.4 for a one-sigma shift (Brook & Evans
+  // Markov chain; our computation).
+  cusum: { enabled: true, k: 0.5, h: 8, headStart: 0 },
+  // Hotelling T² on the curve; one series per mill x grade, alpha per point (Tracy, Young & Mason 1992).
+  t2: { enabled: true, alpha: 0.001 },
+  certificate: {
+    // Curves rounded to whole (or even) HRC that follow chemistry closely repeat by chance of rounding;
+    // ten element values all equal by chance are far rarer.
+    copies: { enabled: true, windowDays: 365, needs: 'chemistry' },
+    // ASTM A255 initial hardness plus 2 HRC (the tolerance of src/hardenability/checks/martensiteCeiling.ts).
+    martensite: { enabled: true, toleranceHrc: 2 },
+    // Standardised residual against the curve predicted from chemistry beyond 4 at two or more distances.
+    prediction: { enabled: true, failZ: 4, minDistances: 2 },
+  },
+  // Ppk of the last 50 heats of the series (after the ingest) against the band in force; below 1.0 the
+  // band is no longer held with a 3-sigma margin (ISO 22514-2 index; 1.0 as a floor is common practice).
+  capability: { enabled: true, windowHeats: 50, minPpk: 1.0, confidence: 0.95 },
+}) as AlertRuleSettings;
+
+export type AlertSettingsOverride = {
+  [K in keyof AlertRuleSettings]?: AlertRuleSettings[K] extends unknown[] ? AlertRuleSettings[K] : AlertRuleSettings[K] extends object ? Partial<AlertRuleSettings[K]> : AlertRuleSettings[K];
+} & { certificate?: { [K in keyof AlertRuleSettings['certificate']]?: Partial<AlertRuleSettings['certificate'][K]> } };
+
+export class AlertSettingsError extends Error {
+  override name = 'AlertSettingsError';
+}
+
+/** The settings of this deployment: the defaults, overridden by ENDQUENCH_ALERT_SETTINGS (JSON) when set. */
+export function deploymentAlertSettings(env: Record<string, string | undefined> = process.env): AlertRuleSettings {
+  const raw = env.ENDQUENCH_ALERT_SETTINGS;
+  if (!raw) return alertSettings();
+  let parsed: unknown;
+  try {
+    parsed = JSON.parse(raw);
+  } catch (error) {
+    throw new AlertSettingsError(`ENDQUENCH_ALERT_SETTINGS is not valid JSON: ${(error as Error).message}`);
+  }
+  if (parsed === null || typeof parsed !== 'object' || Array.isArray(parsed)) throw new AlertSettingsError('ENDQUENCH_ALERT_SETTINGS must be a JSON object');
+  return alertSettings(parsed as AlertSettingsOverride);
+}
+
+/** Defaults with the given parts replaced; checks the values a rule would choke on. */
+export function alertSettings(override: AlertSettingsOverride = {}): AlertRuleSettings {
+  const d = DEFAULT_ALERT_SETTINGS;
+  const s: AlertRuleSettings = {
+    sources: override.sources ?? [...d.sources],
+    historyDays: override.historyDays ?? d.historyDays,
+    causePerDistance: override.causePerDistance ?? d.causePerDistance,
+    reference: { ...d.reference, ...override.reference },
+    nelson: { ...d.nelson, ...override.nelson },
+    ewma: { ...d.ewma, ...override.ewma },
+    cusum: { ...d.cusum, ...override.cusum },
+    t2: { ...d.t2, ...override.t2 },
+    certificate: {
+      copies: { ...d.certificate.copies, ...override.certificate?.copies },
+      martensite: { ...d.certificate.martensite, ...override.certificate?.martensite },
+      prediction: { ...d.certificate.prediction, ...override.certificate?.prediction },
+    },
+    capability: { ...d.capability, ...override.capability },
+  };
+  const fail = (m: string) => {
+    throw new AlertSettingsError(m);
+  };
+  if (s.sources.length === 0) fail('at least one test source must be charted');
+  if (!(s.historyDays >= 1)) fail('historyDays must be at least 1');
+  if (!(Number.isInteger(s.reference.minHeats) && s.reference.minHeats >= 10)) fail('reference.minHeats must be an integer of at least 10');
+  if (!(s.reference.maxHeats >= s.reference.minHeats)) fail('reference.maxHeats must not be below reference.minHeats');
+  if (!(s.ewma.lambda > 0 && s.ewma.lambda <= 1)) fail('ewma.lambda must be in (0, 1]');
+  if (!(s.ewma.L > 0)) fail('ewma.L must be positive');
+  if (!(s.cusum.k >= 0 && s.cusum.h > 0 && s.cusum.headStart >= 0 && s.cusum.headStart < s.cusum.h)) fail('cusum needs k >= 0, h > 0 and 0 <= headStart < h');
+  if (!(s.t2.alpha > 0 && s.t2.alpha < 1)) fail('t2.alpha must be in (0, 1)');
+  if (!(s.certificate.prediction.failZ > 0 && s.certificate.prediction.minDistances >= 1)) fail('prediction needs failZ > 0 and minDistances >= 1');
+  if (!(Number.isInteger(s.capability.windowHeats) && s.capability.windowHeats >= 10)) fail('capability.windowHeats must be an integer of at least 10');
+  if (!(s.capability.minPpk > 0)) fail('capability.minPpk must be positive');
+  if (s.capability.confidence !== null && !(s.capability.confidence > 0.5 && s.capability.confidence < 1)) fail('capability.confidence must be in (0.5, 1) or null');
+  return s;
+}
