@@ -56,7 +56,8 @@ export function assetRoutes(app: Hono<any>): void {
     return c.body(a.body as Uint8Array<ArrayBuffer>, 200, {
       'content-type': a.contentType,
       etag: a.etag,
-      'cache-control': c.req.query('v') ? 'public, max-age=31536000, immutable' : 'public, max-age=300',
+      // Only the URL carrying this content's hash may be cached for good.
+      'cache-control': a.href.endsWith(`?v=${c.req.query('v')}`) ? 'public, max-age=31536000, immutable' : 'public, max-age=300',
     });
   });
 }

@@ -72,7 +72,12 @@ export function histogramSpec(values: readonly number[], fit: { mean: number; sd
         ...(limitRows.length
           ? [
               { data: { values: limitRows }, mark: { type: 'rule', color: PALETTE.amber, strokeWidth: 2.5, strokeDash: [6, 3] }, encoding: { x: { field: 'at', ...x } } },
-              { data: { values: limitRows }, mark: { type: 'text', color: '#7a4a0c', dy: -6, align: 'left', dx: 3, fontWeight: 600, baseline: 'top' }, encoding: { x: { field: 'at', ...x }, y: { value: 4 }, text: { field: 'what' } } },
+              // Labels inside the plot: the minimum's to the right of its line, the maximum's to the left.
+              ...limitRows.map((row, i) => ({
+                data: { values: [row] },
+                mark: { type: 'text', color: '#7a4a0c', align: i === 0 && limits.lsl !== null ? 'left' : 'right', dx: i === 0 && limits.lsl !== null ? 3 : -3, fontWeight: 600, baseline: 'top' },
+                encoding: { x: { field: 'at', ...x }, y: { value: 4 }, text: { field: 'what' } },
+              })),
             ]
           : []),
       ],
