@@ -219,3 +219,23 @@ describe('xlsx written by other programs', () => {
     expect(r.items[0].certificate).toMatchObject({ castDate: '2024-01-04', chemistry: { C: 0.41 }, tests: [{ readings: [{ at: 1, hrc: 57 }] }] });
   });
 });
+
+describe('xlsx size limits (zip bombs)', () => {
+  const ns = 'http://schemas.openxmlformats.org/spreadsheetml/2006/main';
+  // A 200 kB run of blank rows packs to a few hundred bytes: a small zip bomb.
+  const padded = zip({
+    'xl/workbook.xml': `<workbook xmlns="${ns}" xmlns:r="http://schemas.openxmlformats.org/officeDocument/2006/relationships"><sheets><sheet name="S" sheetId="1" r:id="rId1"/></sheets></workbook>`,
+    'xl/_rels/workbook.xml.rels': '<Relationships><Relationship Id="rId1" Target="worksheets/sheet1.xml"/></Relationships>',
+    'xl/worksheets/sheet1.xml': `<worksheet xmlns="${ns}"><sheetData><row r="1"><c r="A1"><v>7</v></c></row>${'<row/>'.repeat(40_000)}</sheetData></worksheet>`,
+  });
+
+  it('reads the workbook within the limits', async () => {
+    expect(padded.length).toBeLessThan(10_000);
+    expect((await readXlsx(padded, { maxPartBytes: 1_000_000 })).rows).toEqual([{ row: 1, cells: [7] }]);
+  });
+
+  it('refuses a part that unpacks past the limit, and a file past the size limit', async () => {
+    await expect(readXlsx(padded, { maxPartBytes: 100_000 })).rejects.toThrow(/^the workbook entry xl\/worksheets\/sheet1\.xml unpacks to more than 0\.1 MB, which is refused/);
+    await expect(readXlsx(padded, { maxBytes: 1_000 })).rejects.toThrow(/^the workbook is 0\.0 MB, more than the 0\.0 MB accepted; split it or export the sheet as CSV$/);
+  });
+});
