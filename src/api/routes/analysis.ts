@@ -9,6 +9,7 @@ import { ModelReferenceError } from '../../db/models.ts';
 import { ELEMENTS } from '../../ingest/certificateSchema.ts';
 import { MM_PER_SIXTEENTH } from '../../hardenability/distances.ts';
 import { capabilityStudy } from '../../analysis/capabilityStudy.ts';
+import { millDataQuality } from '../../analysis/millDataQuality.ts';
 import { CHART_KINDS, controlChart, type ChartParameters } from '../../analysis/controlCharts.ts';
 import { baselinesOnFile, freezeBaselines } from '../../analysis/baselines.ts';
 import { fitAndStoreModel, PREDICTOR_NAMES, type Predictor } from '../../analysis/chemistryModel.ts';
@@ -77,6 +78,20 @@ export function analysisRoutes(app: OpenAPIHono<AppEnv>, db: Db) {
       responses: { 200: json(anyObject, 'Capability study'), ...errors },
     }),
     async (c) => c.json(await answer(() => capabilityStudy(db, c.req.valid('query'))), 200),
+  );
+
+  app.openapi(
+    createRoute({
+      method: 'get',
+      path: '/api/v1/data-quality',
+      tags: ['analysis'],
+      summary: 'Signs of edited data in each mill’s certificates of a grade',
+      description:
+        'Per mill: preference for even readings (Pearson chi-square on even/odd, readings above 20 HRC) and curves too smooth to be measured (scatter about local quadratics against the repeatability shown by the other mills of the grade, rounding included). A flag is a reason to ask the mill for raw data, not proof of anything.',
+      request: { query: z.object({ grade: z.string().min(1), mill: z.string().optional(), from: isoDate.optional(), to: isoDate.optional() }) },
+      responses: { 200: json(z.array(anyObject), 'One entry per mill'), ...errors },
+    }),
+    async (c) => c.json(await answer(() => millDataQuality(db, c.req.valid('query'))), 200),
   );
 
   app.openapi(
