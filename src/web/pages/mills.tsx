@@ -29,6 +29,7 @@ export function millsPage(app: Hono<any>, db: Db) {
       ppkLower: r.lowest?.lower ?? null,
       ppkUpper: r.lowest?.upper ?? null,
       at: r.lowest ? (r.lowest.label ?? mmLabel(r.lowest.distanceMm)) : null,
+      reporting: r.dataQuality.findings.length ? r.dataQuality.findings.join('; ') : r.dataQuality.verdict === 'not_applicable' ? 'too few readings to judge' : 'looks measured',
     }));
     type Row = (typeof rows)[number];
     const table = {
@@ -45,6 +46,17 @@ export function millsPage(app: Hono<any>, db: Db) {
         { key: 'at', label: 'At' },
         { key: 'openAlerts', label: 'Open alerts', numeric: true, cell: (r: Row) => (r.openAlerts ? <a href={`/alerts${query({ mill: r.mill, grade: r.grade, status: 'open' })}`}>{r.openAlerts}</a> : '0') },
         { key: 'trend', label: 'Trend', cell: (r: Row) => <TrendArrow word={r.trend} /> },
+        {
+          key: 'reporting',
+          label: 'Reporting',
+          cell: (r: Row) => (
+            <span title={r.reporting}>
+              <Tag kind={r.dataQuality.verdict === 'fail' ? 'bad' : r.dataQuality.verdict === 'warn' ? 'odd' : 'none'}>
+                {r.dataQuality.verdict === 'fail' ? 'looks edited' : r.dataQuality.verdict === 'warn' ? 'doubtful' : r.dataQuality.verdict === 'pass' ? 'looks measured' : 'too few'}
+              </Tag>
+            </span>
+          ),
+        },
         {
           key: 'links',
           label: 'Look closer',
@@ -83,7 +95,9 @@ export function millsPage(app: Hono<any>, db: Db) {
           {kit.table('overview', 'Mills overview', table)}
           <p class="note">
             In band: heats whose deciding end-quench test conforms to the band in force on the cast date (a receiving re-test overrides the certificate). Lowest Ppk: the smallest Ppk over the band distances of the active band, from the mill's
-            certificate curves. Trend: the newest EWMA value (λ = 0.2) at that distance, steady within half-way to its limit.
+            certificate curves. Trend: the newest EWMA value (λ = 0.2) at that distance, steady within half-way to its limit. Reporting: whether the
+            mill's certificate readings favour even numbers (chi-square on even/odd) or scatter less than measured readings can (against the other
+            mills' scatter); hover for the numbers. "Looks edited" is a reason to ask the mill for raw data, not proof.
           </p>
           {chartRows.length
             ? kit.chart({

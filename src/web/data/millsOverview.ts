@@ -1,0 +1,147 @@
+// The Mills overview: for every mill and grade in a cast-date window, the heats, the share inside the
+// band in force on each heat's cast date, the lowest Ppk over the band's distances (with its interval)
+// and the open alerts, plus a trend arrow read from an EWMA chart at that weakest distance. Every number
+// comes from src/analysis or src/hardenability; this module only loads once per grade and arranges.
+import type { Db } from '../../db/connection.ts';
+import { listBands, listGrades } from '../../db/referenceData.ts';
+import { listAlerts } from '../../db/alerts.ts';
+import { toBand } from '../../analysis/bandOf.ts';
+import { capabilityAtBand, type DistanceCapability } from '../../analysis/capabilityStudy.ts';
+import { phaseOneReference, univariateChart } from '../../analysis/controlCharts.ts';
+import { asTest, curvesOfMill, groupByHeat, loadSeriesCurves, millsOf, pointsAt, todayIso, type HeatCurve } from '../../analysis/seriesData.ts';
+import { bandInForce, type Band } from '../../hardenability/bands.ts';
+import { heatConformance } from '../../hardenability/conformance.ts';
+import { assessCurves, peerRepeatability, type MillDataQuality } from '../../analysis/millDataQuality.ts';
+
+export type TrendWord = 'rising' | 'falling' | 'steady' | 'signal up' | 'signal down' | 'too few heats';
+
+export interface MillGradeRow {
+  mill: string;
+  grade: string;
+  heats: number;
+  /** Heats judged against a band in force on their cast date, and how many of them conform. */
+  judged: number;
+  inBand: number;
+  failed: number;
+  shareInBand: number | null;
+  lowest: { distanceMm: number; label: string | null; ppk: number; lower: number; upper: number; n: number } | null;
+  openAlerts: number;
+  trend: TrendWord;
+  /** EWMA at the newest heat as a fraction of the way from centre to limit (signed), for the tooltip. */
+  trendPosition: number | null;
+  /** Signs of edited data in the mill's certificates (even readings, too-smooth curves). */
+  dataQuality: Pick<MillDataQuality, 'verdict'> & { findings: string[] };
+}
+
+/** The data-quality checks that did not pass, in words for the table. */
+function dataQualityCell(q: MillDataQuality): MillGradeRow['dataQuality'] {
+  const findings = [q.evenReadings, q.smoothness].filter((c) => c.verdict === 'fail' || c.verdict === 'warn').map((c) => `${c.title.toLowerCase()}: ${c.verdict === 'fail' ? 'no' : 'doubtful'} (${c.summary})`);
+  return { verdict: q.verdict, findings };
+}
+
+export interface MillsOverview {
+  window: { from: string | null; to: string | null };
+  rows: MillGradeRow[];
+}
+
+/** Lowest Ppk over the band distances that have a result. */
+export function lowestPpk(distances: readonly DistanceCapability[]): MillGradeRow['lowest'] {
+  let best: MillGradeRow['lowest'] = null;
+  for (const d of distances) {
+    if (!d.result) continue;
+    if (best === null || d.result.ppk < best.ppk) {
+      best = { distanceMm: d.distanceMm, label: d.label, ppk: d.result.ppk, lower: d.result.intervals.ppk.lower, upper: d.result.intervals.ppk.upper, n: d.result.n };
+    }
+  }
+  return best;
+}
+
+/**
+ * The word for the newest EWMA value: beyond a limit is a signal; more than half-way from the centre
+ * to a limit is a drift up or down; otherwise steady. (Half-way is our display threshold, not a rule
+ * from a standard; the Trends page shows the chart itself.)
+ */
+export function trendWord(position: number | null, signalled: boolean): TrendWord {
+  if (position === null) return 'too few heats';
+  if (signalled || Math.abs(position) >= 1) return position > 0 ? 'signal up' : 'signal down';
+  if (position >= 0.5) return 'rising';
+  if (position <= -0.5) return 'falling';
+  return 'steady';
+}
+
+function trendAt(curves: readonly HeatCurve[], band: Band, lowest: MillGradeRow['lowest'], meta: { grade: string; mill: string }) {
+  if (!lowest) return { trend: 'too few heats' as TrendWord, position: null };
+  const series = pointsAt(curves, lowest.distanceMm);
+  if (series.length < 10) return { trend: 'too few heats' as TrendWord, position: null };
+  try {
+    const reference = phaseOneReference(series, { from: null, to: null });
+    const chart = univariateChart('ewma', series, reference, { ...meta, distanceMm: lowest.distanceMm, label: lowest.label, source: 'mill_certificate' });
+    const last = chart.points[chart.points.length - 1];
+    const centre = chart.centre ?? 0;
+    const half = last.plotted >= centre ? last.ucl - centre : centre - (last.lcl ?? centre);
+    const position = half > 0 ? (last.plotted - centre) / half : 0;
+    const signalled = chart.signals.some((s) => s.points.includes(last.index));
+    void band;
+    return { trend: trendWord(position, signalled), position };
+  } catch {
+    return { trend: 'too few heats' as TrendWord, position: null };
+  }
+}
+
+export async function millsOverview(db: Db, window: { from?: string; to?: string }): Promise<MillsOverview> {
+  const [grades, alerts] = await Promise.all([listGrades(db), listAlerts(db, { status: 'open', limit: 10000 })]);
+  const openByKey = new Map<string, number>();
+  for (const a of alerts.alerts) {
+    const key = `${a.mill}|${a.grade}`;
+    openByKey.set(key, (openByKey.get(key) ?? 0) + 1);
+  }
+  const asOf = window.to ?? todayIso();
+  const rows: MillGradeRow[] = [];
+  const loaded = await Promise.all(
+    grades.map(async (grade) => ({
+      grade,
+      versions: (await listBands(db, grade.code)).map(toBand),
+      all: await loadSeriesCurves(db, { grade: grade.code, from: window.from, to: window.to, source: 'both' }),
+    })),
+  );
+  for (const { grade, versions, all } of loaded) {
+    const activeBand = bandInForce(versions.filter((b) => b.status === 'active'), asOf);
+    const mills = millsOf(all);
+    for (const mill of mills) {
+      const own = curvesOfMill(all, mill);
+      const certificates = own.filter((c) => c.source === 'mill_certificate');
+      let judged = 0;
+      let inBand = 0;
+      let failed = 0;
+      const heats = groupByHeat(own);
+      for (const tests of heats) {
+        const band = bandInForce(versions, tests[0].castDate);
+        if (!band) continue;
+        const verdict = heatConformance(tests.map(asTest), band).verdict;
+        judged++;
+        if (verdict === 'pass') inBand++;
+        else if (verdict === 'fail') failed++;
+      }
+      const lowest = activeBand ? lowestPpk(capabilityAtBand(certificates, activeBand)) : null;
+      const { trend, position } = activeBand ? trendAt(certificates, activeBand, lowest, { grade: grade.code, mill }) : { trend: 'too few heats' as TrendWord, position: null };
+      rows.push({
+        mill,
+        grade: grade.code,
+        heats: heats.length,
+        judged,
+        inBand,
+        failed,
+        shareInBand: judged ? inBand / judged : null,
+        lowest,
+        openAlerts: openByKey.get(`${mill}|${grade.code}`) ?? 0,
+        trend,
+        trendPosition: position,
+        dataQuality: dataQualityCell(
+          assessCurves(mill, grade.code, certificates, peerRepeatability(mills.filter((m) => m !== mill).map((m) => curvesOfMill(all, m)))),
+        ),
+      });
+    }
+  }
+  rows.sort((a, b) => a.mill.localeCompare(b.mill) || a.grade.localeCompare(b.grade));
+  return { window: { from: window.from ?? null, to: window.to ?? null }, rows };
+}
