@@ -10,8 +10,10 @@
 // The chart runs over those reference heats and every heat after them, so EWMA and CUSUM carry the
 // history into the new points (a drift that arrives a few heats per ingest still accumulates).
 // Only a signal at a point of a heat this ingest wrote raises an alert; a signal already seen in the
-// history does not. Cause key: rule (with the side for EWMA and CUSUM) + mill + grade + distance + source:
-// a drift gives one open alert per series that stays until someone resolves it.
+// history does not. Cause key: rule (with the side for EWMA and CUSUM) + mill + grade + source, the band
+// distances that fired listed in the evidence (a heat whose whole curve is high fires most distances at
+// once: one cause); with settings.causePerDistance the distance joins the key. A drift gives one open
+// alert that stays until someone resolves it.
 // Severity (our judgement): a point beyond 3 sigma, an EWMA or CUSUM signal: warning; the other run
 // rules: info.
 import type { Executor } from '../../db/connection.ts';

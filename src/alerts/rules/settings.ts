@@ -1,8 +1,8 @@
 // Settings of the statistical alert rules run in the ingest transaction, with their defaults. Sources of
 // the methods are named in each rule's file; docs/access-and-alerts.md ("Rules") explains the choices.
 //
-// How the defaults were chosen: a chart is evaluated per mill x grade x band distance, so a plant with
-// 12 series and 13 to 19 band distances watches ~200 charts at once, and each chart's in-control
+// How the defaults were chosen: a chart is evaluated per mill x grade x band distance, so the demo plant
+// with 9 series and 13 to 19 band distances watches ~140 charts at once, and each chart's in-control
 // false-alarm rate is multiplied by that (a heat whose whole curve is high fires at most distances at
 // once). The defaults are EWMA and CUSUM with long in-control run lengths (ARL0 several thousand heats
 // per chart) that still find a one-sigma shift within about 17 heats; the Nelson rules (1, 2, 3 and 5
