@@ -8,43 +8,32 @@
 // values are (a judgement of ours, not from a standard).
 import type { Db, Executor } from '../../db/connection.ts';
 import type { ApplyResult } from '../../db/certificateStore.ts';
-import { bandInForce, type BandView } from '../../db/referenceData.ts';
+import { listBands } from '../../db/referenceData.ts';
 import { raiseAlert, testsWrittenInThisTransaction, type WrittenTest } from '../../db/alerts.ts';
 import { testConformance, type TestConformance } from '../../hardenability/conformance.ts';
-import type { Band } from '../../hardenability/bands.ts';
+import { bandInForce, type Band } from '../../hardenability/bands.ts';
+import { toBand } from '../../analysis/bandOf.ts';
 
 export const OUT_OF_BAND_RULE = 'out_of_band';
 
 export async function outOfBandRule(tx: Executor, written: ApplyResult): Promise<void> {
   const tests = await testsWrittenInThisTransaction(tx, [...new Set(written.heatIds.values())]);
-  const bands = new Map<string, BandView | null>();
+  // Each grade's band versions are read once; the version in force is picked per test date.
+  const versionsByGrade = new Map<string, Band[]>();
+  for (const grade of new Set(tests.map((t) => t.grade))) {
+    versionsByGrade.set(grade, (await listBands(tx as Db, grade)).filter((b) => b.status === 'active').map(toBand));
+  }
   for (const test of tests) {
     const onDate = test.testDate ?? test.castDate;
-    const bandKey = `${test.grade}@${onDate}`;
-    if (!bands.has(bandKey)) bands.set(bandKey, await bandInForce(tx as Db, test.grade, onDate));
-    const band = bands.get(bandKey);
+    const band = bandInForce(versionsByGrade.get(test.grade) ?? [], onDate);
     if (!band) continue;
-    const result = testConformance(
-      { id: String(test.testId), source: test.source, testDate: onDate, readings: test.readings },
-      toDomainBand(band),
-    );
+    const result = testConformance({ id: String(test.testId), source: test.source, testDate: onDate, readings: test.readings }, band);
     if (result.verdict !== 'fail') continue;
     await raiseAlert(tx, alertFor(test, band, result));
   }
 }
 
-function toDomainBand(b: BandView): Band {
-  return {
-    grade: b.grade,
-    version: b.version,
-    effectiveFrom: b.effectiveFrom,
-    status: b.status as Band['status'],
-    kind: b.kind as Band['kind'],
-    points: b.points.map((p) => ({ mm: p.distanceMm, label: p.label, ...(p.minHrc !== null ? { minHrc: p.minHrc } : {}), ...(p.maxHrc !== null ? { maxHrc: p.maxHrc } : {}) })),
-  };
-}
-
-function alertFor(test: WrittenTest, band: BandView, result: TestConformance) {
+function alertFor(test: WrittenTest, band: Band, result: TestConformance) {
   const failing = result.points.filter((p) => p.verdict === 'fail');
   const worst = failing.reduce((a, b) => ((b.margin as number) < (a.margin as number) ? b : a));
   const measuredMiss = failing.some((p) => p.basis === 'measured');

@@ -113,9 +113,17 @@ describe('capability properties (fast-check)', () => {
           if (va === null) expect(vb).toBeNull();
           else expect(Math.abs(va - (vb as number))).toBeLessThanOrEqual(1e-7 * Math.max(1, Math.abs(va)));
         }
-        expect(Math.abs(a.percentile!.ppk - b.percentile!.ppk)).toBeLessThanOrEqual(1e-7 * Math.max(1, Math.abs(a.percentile!.ppk)));
+        // The percentile index divides by a difference of two order statistics; when they nearly tie,
+        // rounding of the shifted values (relative 2^-52 of their size) is magnified by size/difference.
+        const pa = a.percentile!;
+        const gap = Math.min(...[pa.p99865 - pa.p50, pa.p50 - pa.p00135].filter((g) => g > 0));
+        const size = Math.max(...xs.map(Math.abs)) + Math.abs(shift) + 65;
+        const conditioning = Number.isFinite(gap) ? size / gap : 1;
+        const tolerance = (1e-7 + 16 * Number.EPSILON * conditioning) * Math.max(1, Math.abs(pa.ppk));
+        expect(Math.abs(pa.ppk - b.percentile!.ppk)).toBeLessThanOrEqual(tolerance);
       }),
-      { numRuns: 300 },
+      // The first case is a counterexample fast-check once found for a fixed 1e-7 tolerance.
+      { numRuns: 300, examples: [[[59.99999985789157, 59.99999985712412, 20, 59.99999971577888, 20], 31.99999999968422, false]] },
     );
   });
 });
