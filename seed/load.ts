@@ -6,12 +6,13 @@ import { rowsOf, type Db } from '../src/db/connection.ts';
 import { addBandVersion, listBands, upsertGrade, upsertMill } from '../src/db/referenceData.ts';
 import { runImport, type ImportReport } from '../src/ingest/importPipeline.ts';
 import { runIngestRules } from '../src/alerts/rules/index.ts';
+import { refitModels } from '../src/analysis/refit.ts';
 import { DEFAULT_DEMO_SEED, generateDemo, type DemoData, type DemoStories } from './generate.ts';
 
 /** Certificates per import batch: a few large batches keep the load fast. */
 export const DEMO_BATCH_SIZE = 1250;
 
-export type DemoStage = 'reference' | 'certificates' | 'retests';
+export type DemoStage = 'reference' | 'certificates' | 'retests' | 'models';
 
 export interface LoadDemoOptions {
   seed?: number;
@@ -31,6 +32,8 @@ export interface DemoSummary {
   testsAdded: number;
   readingsAdded: number;
   importIds: number[];
+  /** Chemistry models fitted after the load (per grade, and per mill with enough history). */
+  models: number;
   elapsedMs: number;
   stories: DemoStories;
 }
@@ -95,6 +98,7 @@ export async function loadDemo(db: Db, options: LoadDemoOptions = {}): Promise<D
     testsAdded: 0,
     readingsAdded: 0,
     importIds: [],
+    models: 0,
     elapsedMs: 0,
     stories: data.stories,
   };
@@ -132,6 +136,10 @@ export async function loadDemo(db: Db, options: LoadDemoOptions = {}): Promise<D
     tally(report);
     options.onProgress?.('retests', data.retests.length, data.retests.length);
   }
+  // The plant's own chemistry models, so heat sheets predict from history rather than from a formula.
+  const fits = await refitModels(db, { createdBy: 'demo' });
+  summary.models = fits.filter((f) => f.modelId !== null).length;
+  options.onProgress?.('models', fits.length, fits.length);
   summary.elapsedMs = Math.round(performance.now() - started);
   return summary;
 }

@@ -27,7 +27,7 @@ export function formatDemoSummary(s: DemoSummary): string {
   const st = s.stories;
   return [
     `Demo loaded (seed ${s.seed}) in ${(s.elapsedMs / 1000).toFixed(1)} s: ${s.mills} mills, ${s.grades} grades, ${s.bandsAdded} band version(s) added,`,
-    `  ${s.heatsCreated} new heat(s) of ${s.certificates} certificates, ${s.retests} receiving re-tests; ${s.testsAdded} test(s), ${s.readingsAdded} reading(s) written.`,
+    `  ${s.heatsCreated} new heat(s) of ${s.certificates} certificates, ${s.retests} receiving re-tests; ${s.testsAdded} test(s), ${s.readingsAdded} reading(s) written; ${s.models} chemistry model(s) fitted.`,
     'Planted stories:',
     `  1. ${st.manganeseCreep.title}: ${st.manganeseCreep.mill}, ${st.manganeseCreep.grade}, ${st.manganeseCreep.from} to ${st.manganeseCreep.to} (Mn aim ${st.manganeseCreep.mnAimBefore} -> ${st.manganeseCreep.mnAimAtEnd} %).`,
     `  2. ${st.copiedCertificate.title}: ${st.copiedCertificate.mill} heat ${st.copiedCertificate.copyHeat} (${st.copiedCertificate.copyCastDate}) repeats heat ${st.copiedCertificate.sourceHeat} (${st.copiedCertificate.sourceCastDate}), ${st.copiedCertificate.grade}.`,

@@ -2,51 +2,9 @@
 // and every mill of it with enough history, or for the grade and mill named. Old versions are kept.
 import { Command } from 'commander';
 import { loadConfig } from '../config.ts';
-import { openDatabase, type Db } from '../db/connection.ts';
-import { seriesWithHistory } from '../db/models.ts';
-import { fitAndStoreModel, minHeatsFor, DEFAULT_PREDICTORS } from '../analysis/chemistryModel.ts';
+import { openDatabase } from '../db/connection.ts';
+import { refitModels } from '../analysis/refit.ts';
 
-export interface RefitOptions {
-  grade?: string;
-  mill?: string;
-  from?: string;
-  to?: string;
-  /** Also fit one model per mill (default true). */
-  perMill?: boolean;
-  createdBy?: string;
-}
-
-export interface RefitOutcome {
-  grade: string;
-  mill: string | null;
-  modelId: number | null;
-  version: number | null;
-  distances: number;
-  problem: string | null;
-}
-
-/** Refits the models asked for; a failure on one series is reported and the others go on. */
-export async function refitModels(db: Db, options: RefitOptions = {}): Promise<RefitOutcome[]> {
-  const minHeats = minHeatsFor(DEFAULT_PREDICTORS.length);
-  const series = (await seriesWithHistory(db, 1)).filter((s) => (!options.grade || s.grade === options.grade) && (!options.mill || s.mill === options.mill));
-  const targets: Array<{ grade: string; mill: string | null }> = [];
-  const grades = [...new Set(series.map((s) => s.grade))];
-  for (const grade of grades) {
-    const own = series.filter((s) => s.grade === grade);
-    if (!options.mill && own.reduce((a, s) => a + s.heats, 0) >= minHeats) targets.push({ grade, mill: null });
-    if (options.perMill !== false) for (const s of own) if (s.heats >= minHeats) targets.push({ grade, mill: s.mill });
-  }
-  const outcomes: RefitOutcome[] = [];
-  for (const t of targets) {
-    try {
-      const m = await fitAndStoreModel(db, { grade: t.grade, mill: t.mill ?? undefined, from: options.from, to: options.to, createdBy: options.createdBy ?? 'refit' });
-      outcomes.push({ ...t, modelId: m.id, version: m.version, distances: m.fits.distances.length, problem: null });
-    } catch (error) {
-      outcomes.push({ ...t, modelId: null, version: null, distances: 0, problem: (error as Error).message });
-    }
-  }
-  return outcomes;
-}
 
 export function register(program: Command): void {
   program

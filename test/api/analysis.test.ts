@@ -5,7 +5,7 @@ import { createTestApp, type TestApp } from '../helpers/testApp.ts';
 import { BAND_8620H, importCertificates, syntheticHistory } from '../fixtures/analysisHistory.ts';
 import { renderSvg } from '../../src/analysis/svgRender.ts';
 import { buildPeriodReport, renderReportCsv, renderReportHtml, REPORT_CAUTION } from '../../src/analysis/report.ts';
-import { refitModels } from '../../src/cliCommands/refit.ts';
+import { refitModels } from '../../src/analysis/refit.ts';
 
 let t: TestApp;
 const anvil = syntheticHistory({ seed: 21, mill: 'ANVIL', count: 100, start: '2021-01-04', prefix: 'A' });

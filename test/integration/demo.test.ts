@@ -39,7 +39,13 @@ describe(`demo load (${process.env.TEST_DATABASE_URL ? 'postgres' : 'test databa
     expect(await count(sql`select count(*)::int as n from end_quench_readings`)).toBe(readings);
     expect(summary.readingsAdded).toBe(readings);
     expect(await isDatabaseEmpty(database.db)).toBe(false);
-    expect([...stages].sort()).toEqual(['certificates', 'reference', 'retests']);
+    expect([...stages].sort()).toEqual(['certificates', 'models', 'reference', 'retests']);
+  });
+
+  test('the plant chemistry models are fitted after the load, so heat sheets predict from history', async () => {
+    const grades = await count(sql`select count(distinct grade_id)::int as n from models where mill_id is null`);
+    expect(grades).toBe(data.grades.length);
+    expect(summary.models).toBe(await count(sql`select count(*)::int as n from models`));
   });
 
   test('few import batches, all accepted', async () => {
