@@ -22,3 +22,4 @@ export * from './monotoneInterpolation.ts';
 export * from './random.ts';
 export * from './integrate.ts';
 export * from './gamma.ts';
+export * from './runLength.ts';

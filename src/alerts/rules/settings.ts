@@ -64,12 +64,12 @@ export const DEFAULT_ALERT_SETTINGS: AlertRuleSettings = Object.freeze({
   // trend of six, two of three beyond 2 sigma (the zone rules 6-8 and rule 4 stay on the Trends page).
   nelson: { enabled: false, rules: [1, 2, 3, 5] },
   // Lucas & Saccucci (1990, Technometrics 32:1-12) tabulate lambda 0.1, L = 2.814: ARL0 500, one-sigma
-  // shift found in 10.3. lambda 0.05 with L = 3.5 gives ARL0 about 6,450 and 16.7 for a one-sigma shift
-  // (Markov-chain approximation of Brook & Evans 1972, Biometrika 59:539-549; our computation).
+  // shift found in 10.3. lambda 0.05 with L = 3.5 gives ARL0 about 6,460 and 16.7 for a one-sigma shift
+  // (Lucas & Saccucci's Markov chain, computed by ewmaArl in src/stats/runLength.ts).
   ewma: { enabled: true, lambda: 0.05, L: 3.5 },
   // Page (1954) / Lucas & Crosier (1982): k = 0.5 tuned to a one-sigma shift. h = 5 gives a two-sided
-  // ARL0 of 465 (Montgomery §9.1); h = 8 gives about 9,500 and 16.4 for a one-sigma shift (Brook & Evans
-  // Markov chain; our computation).
+  // ARL0 of 465 (Montgomery §9.1); h = 8 gives a two-sided ARL0 of about 9,480 and 16.4 for a one-sigma
+  // shift (Brook & Evans 1972 Markov chain, computed by cusumArl in src/stats/runLength.ts).
   cusum: { enabled: true, k: 0.5, h: 8, headStart: 0 },
   // Hotelling T² on the curve; one series per mill x grade, alpha per point (Tracy, Young & Mason 1992).
   t2: { enabled: true, alpha: 0.001 },
