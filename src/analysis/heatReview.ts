@@ -113,8 +113,9 @@ export async function heatReview(db: Db, heatId: number): Promise<HeatReview> {
   const millTest = current.find((t) => t.source === 'mill_certificate');
   checks.push(
     findPossibleCopies(
-      { heatId: String(heat.id), millId: heat.mill, readings: millTest?.readings.map((r) => ({ mm: r.distanceMm, hrc: r.hrc })), chemistry },
-      groupByHeat(neighbours).map((g) => ({ heatId: String(g[0].heatId), millId: g[0].mill, readings: [...g[0].readings].map(([mm, hrc]) => ({ mm, hrc })), chemistry: g[0].chemistry as Chemistry })),
+      // Heat numbers (unique within a mill) name the heats, so the evidence reads as the certificates do.
+      { heatId: heat.heatNumber, millId: heat.mill, readings: millTest?.readings.map((r) => ({ mm: r.distanceMm, hrc: r.hrc })), chemistry },
+      groupByHeat(neighbours).map((g) => ({ heatId: g[0].heatNumber, millId: g[0].mill, readings: [...g[0].readings].map(([mm, hrc]) => ({ mm, hrc })), chemistry: g[0].chemistry as Chemistry })),
     ),
   );
 

@@ -15,6 +15,7 @@ import { controlChart, type ControlChart } from './controlCharts.ts';
 import { capabilitySpec, controlChartSpec } from './vegaSpecs.ts';
 import { renderSvg } from './svgRender.ts';
 import { groupByHeat, loadSeriesCurves } from './seriesData.ts';
+import { millDataQuality, type MillDataQuality } from './millDataQuality.ts';
 
 export const REPORT_CAUTION =
   'These statistics and predictions help decide where to look; they support, and do not replace, end-quench testing and acceptance to the purchase specification.';
@@ -34,6 +35,8 @@ export interface GradeSection {
   capabilityProblem: string | null;
   charts: ControlChart[];
   chartProblems: Array<{ distanceMm: number; problem: string }>;
+  /** How the mill reports: even-reading preference and too-smooth curves (null with no curves). */
+  reporting: MillDataQuality | null;
 }
 
 export interface PeriodReport {
@@ -56,7 +59,8 @@ export interface ReportRequest {
 
 function certificateFindings(curves: Awaited<ReturnType<typeof loadSeriesCurves>>, limits: ChemistryLimits | null): Map<number, CheckEvidence[]> {
   const heats = groupByHeat(curves).map((g) => g[0]);
-  const records = heats.map((h) => ({ heatId: String(h.heatId), millId: h.mill, readings: [...h.readings].map(([mm, hrc]) => ({ mm, hrc })), chemistry: h.chemistry as Chemistry }));
+  // Heat numbers (unique within a mill) name the heats, so the evidence reads as the certificates do.
+  const records = heats.map((h) => ({ heatId: h.heatNumber, millId: h.mill, readings: [...h.readings].map(([mm, hrc]) => ({ mm, hrc })), chemistry: h.chemistry as Chemistry }));
   const out = new Map<number, CheckEvidence[]>();
   heats.forEach((h, i) => {
     const readings = records[i].readings;
@@ -75,7 +79,15 @@ export async function buildPeriodReport(db: Db, request: ReportRequest): Promise
   const sections: GradeSection[] = [];
   const suspicious: SuspiciousCertificate[] = [];
   for (const grade of grades) {
-    const section: GradeSection = { grade, heats: heats.filter((h) => h.grade === grade).length, capability: null, capabilityProblem: null, charts: [], chartProblems: [] };
+    const section: GradeSection = {
+      grade,
+      heats: heats.filter((h) => h.grade === grade).length,
+      capability: null,
+      capabilityProblem: null,
+      charts: [],
+      chartProblems: [],
+      reporting: (await millDataQuality(db, { grade, mill: request.mill, from: request.from, to: request.to }))[0] ?? null,
+    };
     try {
       section.capability = await capabilityStudy(db, { grade, mill: request.mill, from: request.from, to: request.to });
     } catch (error) {
@@ -147,6 +159,15 @@ export async function renderReportHtml(report: PeriodReport): Promise<string> {
       parts.push(`<figure>${await renderSvg(controlChartSpec(chart, { width: 760, height: 200 }))}<figcaption>${esc(note)}</figcaption></figure>`);
     }
     for (const p of g.chartProblems) parts.push(`<p>No chart at ${esc(p.distanceMm)} mm: ${esc(p.problem)}</p>`);
+    if (g.reporting) {
+      const findings = [g.reporting.evenReadings, g.reporting.smoothness].filter((c) => c.verdict === 'fail' || c.verdict === 'warn');
+      parts.push('<h3>How the readings are reported</h3>');
+      parts.push(
+        findings.length
+          ? `<p>${findings.map((f) => `${esc(f.title)}: <strong>${f.verdict === 'fail' ? 'no' : 'doubtful'}</strong> — ${esc(f.summary)}`).join('<br>')}</p><p>Ask the mill for the raw readings of a few heats; this is a reason to look, not proof of anything.</p>`
+          : '<p>The readings look measured: even and odd values are about equally frequent, and the curves scatter as much as measurements do.</p>',
+      );
+    }
   }
   parts.push('<h2>Alerts</h2>');
   if (report.alerts.length === 0) parts.push('<p>No alert raised in the period, and none open.</p>');
@@ -156,11 +177,19 @@ export async function renderReportHtml(report: PeriodReport): Promise<string> {
     parts.push('</table>');
   }
   parts.push('<h2>Certificates to look at</h2>');
+  const failed = report.suspicious.flatMap((s) => s.findings.filter((f) => f.verdict === 'fail').map((f) => ({ s, f })));
+  const doubtful = new Map<string, string[]>();
+  for (const s of report.suspicious) for (const f of s.findings) if (f.verdict === 'warn') doubtful.set(f.check, [...(doubtful.get(f.check) ?? []), s.heatNumber]);
   if (report.suspicious.length === 0) parts.push('<p>Every certificate passed the checks (curve shape, quenched-end hardness, chemistry limits, repeated values).</p>');
-  else {
-    parts.push('<table><tr><th class="l">Heat</th><th class="l">Grade</th><th class="l">Cast</th><th class="l">Finding</th></tr>');
-    for (const s of report.suspicious) for (const f of s.findings) parts.push(`<tr><td class="l">${esc(s.heatNumber)}</td><td class="l">${esc(s.grade)}</td><td class="l">${esc(s.castDate)}</td><td class="l">${esc(f.verdict === 'fail' ? 'Check failed' : 'Worth a look')}: ${esc(f.check)}. ${esc(f.summary)}</td></tr>`);
+  if (failed.length) {
+    parts.push('<table><tr><th class="l">Heat</th><th class="l">Grade</th><th class="l">Cast</th><th class="l">Check failed</th></tr>');
+    for (const { s, f } of failed) parts.push(`<tr><td class="l">${esc(s.heatNumber)}</td><td class="l">${esc(s.grade)}</td><td class="l">${esc(s.castDate)}</td><td class="l">${esc(f.check)}. ${esc(f.summary)}</td></tr>`);
     parts.push('</table>');
+  }
+  if (doubtful.size) {
+    parts.push('<p>Worth a look (each is common on its own, and a pattern only in numbers):</p><ul>');
+    for (const [check, heats] of doubtful) parts.push(`<li>${esc(check)}: ${heats.length} certificate(s), e.g. heats ${esc(heats.slice(0, 6).join(', '))}${heats.length > 6 ? ', …' : ''}.</li>`);
+    parts.push('</ul>');
   }
   parts.push(`<p class="caution">${esc(report.caution)}</p></body></html>`);
   return parts.join('\n');

@@ -30,6 +30,9 @@ import type { CheckEvidence, Reading } from './types.ts';
 
 export type DigitTestMode = 'last_digit' | 'even_odd';
 
+/** A p-value for people: three significant digits, or "< 1e-16" where double precision runs out. */
+const formatP = (p: number): string => (p < 1e-16 ? '< 1e-16' : `= ${p.toPrecision(3)}`);
+
 export interface TerminalDigitOptions {
   mode?: DigitTestMode;
   /** Reporting step of the values (HRC): 1 for whole numbers, 0.5 for halves. Default 1. */
@@ -93,7 +96,7 @@ export function terminalDigitTest(
   const spanInSteps = Math.max(...units) - Math.min(...units);
   const verdict = pValue < alpha ? 'fail' : pValue < warnAlpha ? 'warn' : 'pass';
   let summary =
-    `chi-square ${chiSquare.toFixed(2)} on ${df} df, p = ${pValue.toPrecision(3)} over ${n} values; counts ` +
+    `chi-square ${chiSquare.toFixed(2)} on ${df} df, p ${formatP(pValue)} over ${n} values; counts ` +
     (mode === 'last_digit' ? observed.map((o, d) => `${d}:${o}`).join(' ') : `even ${observed[0]}, odd ${observed[1]}`) +
     '.';
   if (mode === 'last_digit' && spanInSteps < 30) {
@@ -207,7 +210,7 @@ export function smoothnessTest(
   const verdict = pValueLower < alpha && ratio < maxRatio ? 'fail' : 'pass';
   const summary =
     `readings scatter ${apparentSdHrc.toFixed(2)} HRC about local quadratics, against ${expectedSdHrc.toFixed(2)} HRC expected of measured and rounded values ` +
-    `(ratio ${ratio.toFixed(2)}; chi-square ${statistic.toFixed(1)} on ${df} df, lower-tail p = ${pValueLower.toPrecision(3)})` +
+    `(ratio ${ratio.toFixed(2)}; chi-square ${statistic.toFixed(1)} on ${df} df, lower-tail p ${formatP(pValueLower)})` +
     (verdict === 'fail' ? ': too smooth to be measured readings.' : '.');
   return {
     check: 'too_smooth',

@@ -71,7 +71,7 @@ function copyAlerts(group: SeriesGroup, settings: AlertRuleSettings): RaiseAlert
     const pool = certificates.filter((c) => c.heatId !== target.heatId && c.castDate >= from && c.castDate <= to && mayBeExact(target, c, settings.certificate.copies.needs));
     const record = (c: HeatCurve): HeatRecord => ({ heatId: String(c.heatId), millId: c.mill, readings: readingsOf(c), chemistry: c.chemistry as Chemistry });
     const check = findPossibleCopies(record(target), pool.map(record));
-    if (check.verdict !== 'fail') continue;
+    if (check.verdict === 'pass') continue;
     const exact = check.values.matches.filter((m) => m.kind.endsWith('_exact'));
     const counted = exact.filter((m) => settings.certificate.copies.needs === 'curve_or_chemistry' || m.kind === 'chemistry_exact');
     const partners = [...new Set(counted.map((m) => Number(m.otherHeatId)))].map((id) => byId.get(id)!);

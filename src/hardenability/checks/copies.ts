@@ -87,8 +87,14 @@ export function findPossibleCopies(
       }
     }
   }
+  // A whole certificate repeated (curve and chemistry of the same other heat) fails; one exact repeat
+  // alone is worth a look (a coarsely rounded curve can repeat by chance); near matches alone pass
+  // and stay listed.
   const exact = matches.filter((m) => m.kind.endsWith('_exact'));
-  const verdict = exact.length ? 'fail' : matches.length ? 'warn' : 'pass';
+  const byHeat = (kind: 'curve' | 'chemistry') => new Set(matches.filter((m) => m.kind.startsWith(kind)).map((m) => m.otherHeatId));
+  const curveHeats = byHeat('curve');
+  const whole = [...byHeat('chemistry')].some((id) => curveHeats.has(id));
+  const verdict = whole ? 'fail' : exact.length ? 'warn' : 'pass';
   const summary = matches.length
     ? matches
         .map((m) => `${m.kind.replace('_', ' ')} with heat ${m.otherHeatId} (${m.compared} values, largest difference ${Number(m.largestDifference.toFixed(4))})`)

@@ -86,19 +86,34 @@ describe('possible copied certificates', () => {
       { heatId: 'H3', millId: 'M2', readings: curve(good) },
       { heatId: 'H1', millId: 'M1', readings: curve(good) },
     ]);
-    expect(r.verdict).toBe('fail');
+    // The curve alone repeated: worth a look (a coarsely rounded curve can repeat by chance).
+    expect(r.verdict).toBe('warn');
     expect(r.values.matches).toEqual([{ otherHeatId: 'H2', kind: 'curve_exact', compared: 13, largestDifference: 0 }]);
     expect(r.values.candidatesCompared).toBe(1);
   });
 
-  it('near match within rounding warns; a real difference does not match', () => {
+  it('the whole certificate of another heat repeated (curve and chemistry) fails', () => {
+    const r = findPossibleCopies(target, [{ heatId: 'H2', millId: 'M1', readings: curve(good), chemistry: { ...chem } }]);
+    expect(r.verdict).toBe('fail');
+    expect(r.values.matches.map((m) => m.kind)).toEqual(['curve_exact', 'chemistry_exact']);
+  });
+
+  it('curve and chemistry repeated from two different heats is worth a look, not a copy of one certificate', () => {
+    const r = findPossibleCopies(target, [
+      { heatId: 'H2', millId: 'M1', readings: curve(good) },
+      { heatId: 'H6', millId: 'M1', chemistry: { ...chem } },
+    ]);
+    expect(r.verdict).toBe('warn');
+  });
+
+  it('a near match within rounding is listed but passes; a real difference does not match', () => {
     const near = good.map((h, i) => (i === 3 ? h + 0.5 : h));
     const far = good.map((h, i) => (i === 3 ? h + 2 : h));
     const r = findPossibleCopies(target, [
       { heatId: 'H4', millId: 'M1', readings: curve(near) },
       { heatId: 'H5', millId: 'M1', readings: curve(far) },
     ]);
-    expect(r.verdict).toBe('warn');
+    expect(r.verdict).toBe('pass');
     expect(r.values.matches.map((m) => [m.otherHeatId, m.kind])).toEqual([['H4', 'curve_near']]);
   });
 
