@@ -35,6 +35,20 @@ export function distanceLabel(value: number, system: DistanceSystem): string {
   return system === 'sixteenths' ? `J${formatNumber(value)}` : `${formatNumber(value)} mm`;
 }
 
+/**
+ * A distance for a sentence a person reads: its certificate label when known; otherwise a whole
+ * sixteenth that is not a whole millimetre reads "J3 (4.76 mm)", and anything else in mm to 0.01.
+ */
+export function describeDistance(mm: number, label?: string): string {
+  if (label) return label;
+  const sixteenths = mmToSixteenths(mm);
+  const round = (v: number) => String(Number(v.toFixed(2)));
+  if (Math.abs(sixteenths - Math.round(sixteenths)) < 1e-9 && Math.abs(mm - Math.round(mm * 2) / 2) > 1e-9) {
+    return `J${Math.round(sixteenths)} (${round(mm)} mm)`;
+  }
+  return `${round(mm)} mm`;
+}
+
 /** Build a Distance from a number in a given system. */
 export function makeDistance(value: number, system: DistanceSystem): Distance {
   if (!Number.isFinite(value) || value <= 0) {

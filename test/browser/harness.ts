@@ -6,7 +6,7 @@ import { serve, type ServerType } from '@hono/node-server';
 import { chromium, type Browser, type Page } from 'playwright-core';
 import { createApp } from '../../src/api/app.ts';
 import { createLogger } from '../../src/logger.ts';
-import { outOfBandRule } from '../../src/alerts/rules/outOfBand.ts';
+import { INGEST_RULES } from '../../src/alerts/rules/index.ts';
 import { loadDemo, type DemoSummary } from '../../seed/load.ts';
 import { createTestDatabase, type TestDatabase } from '../helpers/testDatabase.ts';
 
@@ -25,7 +25,7 @@ export interface Site {
 export async function startSite(): Promise<Site> {
   const database = await createTestDatabase();
   const demo = await loadDemo(database.db);
-  const app = createApp({ database, logger: createLogger('silent'), access: { afterWrite: [outOfBandRule] } });
+  const app = createApp({ database, logger: createLogger('silent'), access: { afterWrite: INGEST_RULES } });
   const server: ServerType = await new Promise((resolve) => {
     const s = serve({ fetch: app.fetch, port: 0, hostname: '127.0.0.1' }, () => resolve(s));
   });

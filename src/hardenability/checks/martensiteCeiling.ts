@@ -7,6 +7,7 @@ import { OutsideMethodError } from '../errors.ts';
 import { martensiteBounds } from '../martensite.ts';
 import { sortedReadings } from '../distances.ts';
 import type { CheckEvidence, Reading } from '../types.ts';
+import { describeDistance } from '../distances.ts';
 
 export interface CeilingOptions {
   toleranceHrc?: number;
@@ -41,8 +42,8 @@ export function checkMartensiteCeiling(
   const c = ceiling.toFixed(1);
   const summary =
     verdict === 'pass'
-      ? `hardest reading ${hardest.hrc} HRC at ${hardest.mm} mm is at or below ${c} HRC, fully martensitic hardness for ${carbon} % C.`
-      : `hardest reading ${hardest.hrc} HRC at ${hardest.mm} mm is ${excess.toFixed(1)} HRC above ${c} HRC, fully martensitic hardness for ${carbon} % C${verdict === 'warn' ? ` (within the ${tol} HRC tolerance)` : ''}.`;
+      ? `hardest reading ${hardest.hrc} HRC at ${describeDistance(hardest.mm, hardest.label)} is at or below ${c} HRC, fully martensitic hardness for ${carbon} % C.`
+      : `hardest reading ${hardest.hrc} HRC at ${describeDistance(hardest.mm, hardest.label)} is ${excess.toFixed(1)} HRC above ${c} HRC, fully martensitic hardness for ${carbon} % C${verdict === 'warn' ? ` (within the ${tol} HRC tolerance)` : ''}.`;
   return {
     check: 'martensite_ceiling',
     title,

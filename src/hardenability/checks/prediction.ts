@@ -9,6 +9,7 @@
 import { chiSquareCdf } from '../../stats/distributions.ts';
 import { HardenabilityInputError } from '../errors.ts';
 import type { CheckEvidence, Reading } from '../types.ts';
+import { describeDistance } from '../distances.ts';
 
 export interface PredictionPoint {
   mm: number;
@@ -55,6 +56,6 @@ export function checkAgainstPrediction(
   const sumZ2 = rows.reduce((s, r) => s + r.z * r.z, 0);
   const pValue = 1 - chiSquareCdf(sumZ2, rows.length);
   const verdict = Math.abs(worst.z) > failZ ? 'fail' : Math.abs(worst.z) > warnZ ? 'warn' : 'pass';
-  const summary = `largest standardised residual z = ${worst.z.toFixed(2)} at ${worst.mm} mm (reported ${worst.reported}, predicted ${worst.predicted.toFixed(1)} +/- ${worst.sd.toFixed(1)} HRC); ${rows.length} distances compared.`;
+  const summary = `largest standardised residual z = ${worst.z.toFixed(2)} at ${describeDistance(worst.mm)} (reported ${worst.reported}, predicted ${worst.predicted.toFixed(1)} +/- ${worst.sd.toFixed(1)} HRC); ${rows.length} distances compared.`;
   return { check: 'prediction_residuals', title, verdict, summary, threshold, values: { rows, notCompared, sumZ2, pValue } };
 }

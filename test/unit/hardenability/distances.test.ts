@@ -4,6 +4,7 @@ import {
   A255_POSITIONS_SIXTEENTHS,
   MM_PER_SIXTEENTH,
   convertCurve,
+  describeDistance,
   iso642PositionsMm,
   mmToSixteenths,
   parseDistanceLabel,
@@ -160,5 +161,19 @@ describe('convertCurve', () => {
   it('refuses duplicate distances and too-short curves', () => {
     expect(() => convertCurve([{ mm: 1.5, hrc: 40 }], 'sixteenths')).toThrow(/two readings/);
     expect(() => convertCurve([{ mm: 1.5, hrc: 40 }, { mm: 1.5, hrc: 41 }], 'sixteenths')).toThrow(/same distance/);
+  });
+});
+
+describe('distances in sentences', () => {
+  it('names a whole sixteenth by its J position and exact mm (1/16 in = 1.5875 mm, ASTM A255)', () => {
+    expect(describeDistance(3 * 1.5875)).toBe('J3 (4.76 mm)');
+    expect(describeDistance(1.5875)).toBe('J1 (1.59 mm)');
+  });
+  it('keeps ISO 642 positions in mm, and a given label wins', () => {
+    expect(describeDistance(1.5)).toBe('1.5 mm');
+    // 8/16 in = 12.7 mm and 16/16 in = 25.4 mm are not whole or half millimetres either.
+    expect(describeDistance(25.4)).toBe('J16 (25.4 mm)');
+    expect(describeDistance(25)).toBe('25 mm');
+    expect(describeDistance(6.35, 'J4')).toBe('J4');
   });
 });
