@@ -56,17 +56,24 @@ export function testConformance(test: EndQuenchTest, band: Band, options: TestCo
   const readings = sortedReadings(test.readings);
   if (readings.length === 0) throw new HardenabilityInputError(`test ${test.id} has no readings`);
   const tol = options.matchToleranceMm ?? 1e-6;
-  const interp =
-    readings.length >= 2
-      ? monotoneCubic(
-          readings.map((r) => r.mm),
-          readings.map((r) => r.hrc),
-        )
-      : null;
+  // Built on first need only: most tests are measured at every band distance.
+  let interpolant: ReturnType<typeof monotoneCubic> | null | undefined;
+  const interpolateAt = (mm: number): number | null => {
+    if (interpolant === undefined) {
+      interpolant =
+        readings.length >= 2
+          ? monotoneCubic(
+              readings.map((r) => r.mm),
+              readings.map((r) => r.hrc),
+            )
+          : null;
+    }
+    return interpolant?.at(mm) ?? null;
+  };
 
   const points = b.points.map((p): PointConformance => {
     const exact = readings.find((r) => Math.abs(r.mm - p.mm) <= tol);
-    let hrc: number | null = exact ? exact.hrc : (interp?.at(p.mm) ?? null);
+    let hrc: number | null = exact ? exact.hrc : interpolateAt(p.mm);
     const basis: PointConformance['basis'] = exact ? 'measured' : hrc === null ? 'not_tested' : 'interpolated';
     if (hrc === null) {
       return { ...limits(p), hrc: null, basis, verdict: 'not_tested', margin: null, governingLimit: null };
