@@ -7,6 +7,7 @@ import { ZodError } from 'zod';
 import { ping, type Database } from '../db/connection.ts';
 import type { Logger } from '../logger.ts';
 import { ApiError, errorResponse, problemsOf } from './errors.ts';
+import { HardenabilityInputError } from '../hardenability/errors.ts';
 import type { AppEnv } from './context.ts';
 import { catalogRoutes } from './routes/catalog.ts';
 import { ingestRoutes } from './routes/ingest.ts';
@@ -75,6 +76,7 @@ export function createApp({ database, logger, version = '0.1.0', access = {} }: 
     if (error instanceof ZodError) return errorResponse(c, 400, 'invalid_request', 'The request is not valid; see details.', problemsOf(error));
     if (error instanceof HTTPException) return errorResponse(c, error.status, 'http_error', error.message);
     if (error instanceof SyntaxError) return errorResponse(c, 400, 'invalid_json', `The body is not valid JSON: ${error.message}`);
+    if (error instanceof HardenabilityInputError) return errorResponse(c, 400, 'invalid_request', error.message);
     logger.error({ err: error, path: c.req.path }, 'unexpected error');
     return errorResponse(c, 500, 'internal_error', 'Something went wrong on our side; it has been logged.');
   });

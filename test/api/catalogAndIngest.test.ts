@@ -119,3 +119,11 @@ describe('POST /certificates', () => {
     expect(await download.text()).toBe(body);
   });
 });
+
+describe('band points beyond the specimen', () => {
+  test('a band distance past the end of the end-quench specimen (ISO 642: 100 mm; ASTM A255: 4 in) is refused with 400', async () => {
+    const r = await t.request('POST', '/api/v1/grades/8620H/bands', { effectiveFrom: '2025-01-01', distanceSystem: 'mm', points: [{ at: 120, max: 30 }] });
+    expect(r.status).toBe(400);
+    expect(r.body.error.message).toMatch(/longer than the end-quench specimen/);
+  });
+});

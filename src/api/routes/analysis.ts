@@ -7,7 +7,7 @@ import { getModel, listModels } from '../../db/models.ts';
 import { BaselineReferenceError } from '../../db/baselines.ts';
 import { ModelReferenceError } from '../../db/models.ts';
 import { ELEMENTS } from '../../ingest/certificateSchema.ts';
-import { MM_PER_SIXTEENTH } from '../../hardenability/distances.ts';
+import { makeDistance, MM_PER_SIXTEENTH } from '../../hardenability/distances.ts';
 import { capabilityStudy } from '../../analysis/capabilityStudy.ts';
 import { millDataQuality } from '../../analysis/millDataQuality.ts';
 import { CHART_KINDS, controlChart, type ChartParameters } from '../../analysis/controlCharts.ts';
@@ -62,8 +62,6 @@ async function answer<T>(work: () => Promise<T>): Promise<T> {
 }
 
 const distanceBody = z.object({ distanceSystem: z.enum(['mm', 'sixteenths']).default('mm') });
-const toMm = (at: number, system: 'mm' | 'sixteenths') => (system === 'mm' ? at : at * MM_PER_SIXTEENTH);
-const labelOf = (at: number, system: 'mm' | 'sixteenths') => (system === 'mm' ? `${at} mm` : `J${at}`);
 
 export function analysisRoutes(app: OpenAPIHono<AppEnv>, db: Db) {
   app.openapi(
@@ -195,7 +193,7 @@ export function analysisRoutes(app: OpenAPIHono<AppEnv>, db: Db) {
           source: b.source,
           from: b.from,
           to: b.to,
-          distancesMm: b.distances?.map((d) => toMm(d, b.distanceSystem)),
+          distancesMm: b.distances?.map((d) => makeDistance(d, b.distanceSystem).mm),
           reason: b.reason,
           createdBy: c.get('auth')?.name ?? null,
           L: b.L,
@@ -382,7 +380,10 @@ export function analysisRoutes(app: OpenAPIHono<AppEnv>, db: Db) {
       const result = await answer(() =>
         bandTrial(db, {
           grade: b.grade,
-          points: b.points.map((p) => ({ distanceMm: toMm(p.at, b.distanceSystem), label: labelOf(p.at, b.distanceSystem), minHrc: p.min, maxHrc: p.max })),
+          points: b.points.map((p) => {
+            const at = makeDistance(p.at, b.distanceSystem);
+            return { distanceMm: at.mm, label: at.label, minHrc: p.min, maxHrc: p.max };
+          }),
           mills: b.mills,
           from: b.from,
           to: b.to,

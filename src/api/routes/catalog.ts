@@ -4,8 +4,7 @@ import type { Db } from '../../db/connection.ts';
 import { addBandVersion, listBands, listGrades, listMills, findGrade, upsertGrade, upsertMill } from '../../db/referenceData.ts';
 import { getHeat, listHeats } from '../../db/heats.ts';
 import { ELEMENTS } from '../../ingest/certificateSchema.ts';
-import { toMillimetres } from '../../ingest/prepare.ts';
-import { distanceLabel } from '../../hardenability/distances.ts';
+import { makeDistance } from '../../hardenability/distances.ts';
 import { ApiError, errorBodySchema } from '../errors.ts';
 import type { AppEnv } from '../context.ts';
 
@@ -129,12 +128,10 @@ export function catalogRoutes(app: OpenAPIHono<AppEnv>, db: Db) {
         kind: body.kind,
         reason: body.reason,
         author: c.get('auth')?.name,
-        points: body.points.map((p) => ({
-          distanceMm: toMillimetres(p.at, body.distanceSystem),
-          label: distanceLabel(p.at, body.distanceSystem),
-          minHrc: p.min,
-          maxHrc: p.max,
-        })),
+        points: body.points.map((p) => {
+          const at = makeDistance(p.at, body.distanceSystem);
+          return { distanceMm: at.mm, label: at.label, minHrc: p.min, maxHrc: p.max };
+        }),
       });
       return c.json(band, 201);
     },
