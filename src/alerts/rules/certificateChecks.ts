@@ -5,7 +5,7 @@
 //    cast within `copies.windowDays` (findPossibleCopies; "exact" = every common value identical). When
 //    both heats are new in the same ingest, the later one (cast date, then heat number) carries the alert.
 //  - "impossible_j1" (critical): a reading of a new test harder than fully martensitic steel of the heat's
-//    carbon allows, by more than `martensite.toleranceHrc` (ASTM A255 initial hardness; checkMartensiteCeiling).
+//    carbon allows, by more than `martensite.failAboveHrc` over the ASTM A255 initial hardness (checkMartensiteCeiling).
 //  - "inconsistent_with_chemistry" (warning): a new test (any source) whose standardised residual against
 //    the curve predicted from the heat's chemistry exceeds `prediction.failZ` in absolute value at
 //    `prediction.minDistances` or more distances (checkAgainstPrediction). The prediction is the newest
@@ -110,7 +110,7 @@ function copyAlerts(group: SeriesGroup, settings: AlertRuleSettings): RaiseAlert
 function martensiteAlert(group: SeriesGroup, test: WrittenTest, heat: HeatCurve, lotNumber: string | null, settings: AlertRuleSettings): RaiseAlertInput | null {
   const carbon = heat.chemistry.C;
   if (carbon === undefined) return null;
-  const check = checkMartensiteCeiling(test.readings, carbon, { toleranceHrc: settings.certificate.martensite.toleranceHrc });
+  const check = checkMartensiteCeiling(test.readings, carbon, { failAboveHrc: settings.certificate.martensite.failAboveHrc });
   if (check.verdict !== 'fail') return null;
   const v = check.values;
   return {

@@ -41,7 +41,7 @@ export interface AlertRuleSettings {
      * 'curve_or_chemistry': an exactly repeated curve alone is enough.
      */
     copies: { enabled: boolean; windowDays: number; needs: 'chemistry' | 'curve_or_chemistry' };
-    martensite: { enabled: boolean; toleranceHrc: number };
+    martensite: { enabled: boolean; failAboveHrc: number };
     prediction: { enabled: boolean; failZ: number; minDistances: number };
   };
   /**
@@ -78,7 +78,7 @@ export const DEFAULT_ALERT_SETTINGS: AlertRuleSettings = Object.freeze({
     // ten element values all equal by chance are far rarer.
     copies: { enabled: true, windowDays: 365, needs: 'chemistry' },
     // ASTM A255 initial hardness plus 2 HRC (the tolerance of src/hardenability/checks/martensiteCeiling.ts).
-    martensite: { enabled: true, toleranceHrc: 2 },
+    martensite: { enabled: true, failAboveHrc: 5 },
     // Standardised residual against the curve predicted from chemistry beyond 4 at two or more distances.
     prediction: { enabled: true, failZ: 4, minDistances: 2 },
   },

@@ -1,7 +1,10 @@
-// Certificate check: no reading can be harder than fully martensitic steel of the same carbon.
-// Ceiling: ASTM A255 initial hardness IH(C) (99.9 % martensite); see martensite.ts for sources.
-// A reading above the ceiling by more than the tolerance (default 2 HRC: about the scatter of the
-// ceiling relation plus Rockwell reading scatter; common practice) fails; within it, warns.
+// Certificate check: the quenched end cannot be much harder than fully martensitic steel of the same
+// carbon. IH(C) (ASTM A255 initial hardness, 99.9 % martensite; see martensite.ts) is the EXPECTED
+// hardness of such steel, not a sharp upper bound: readings scatter about it, and published H-bands put
+// their J1 maximum above it (EN 10084 20MnCr5+H allows 49 HRC at 1.5 mm with up to 0.22 % C, where
+// IH = 45.6 HRC). So a reading up to `warnAboveHrc` over IH passes; up to `failAboveHrc` over it is
+// worth a look; beyond that the curve is not plausible for its carbon (defaults 2 and 5 HRC: our
+// judgement from that band, common practice for the scatter).
 
 import { OutsideMethodError } from '../errors.ts';
 import { martensiteBounds } from '../martensite.ts';
@@ -10,7 +13,10 @@ import type { CheckEvidence, Reading } from '../types.ts';
 import { describeDistance } from '../distances.ts';
 
 export interface CeilingOptions {
-  toleranceHrc?: number;
+  /** Excess over IH(C) that is worth a look (default 2 HRC). */
+  warnAboveHrc?: number;
+  /** Excess over IH(C) that the curve cannot be explained by (default 5 HRC). */
+  failAboveHrc?: number;
 }
 
 export function checkMartensiteCeiling(
@@ -18,9 +24,10 @@ export function checkMartensiteCeiling(
   carbon: number,
   options: CeilingOptions = {},
 ): CheckEvidence<{ carbon: number; ceilingHrc: number | null; hardestMm: number | null; hardestHrc: number | null; excess: number | null; carbonFlags: string[] }> {
-  const tol = options.toleranceHrc ?? 2;
-  const title = 'Quenched-end hardness not above fully martensitic steel of this carbon';
-  const threshold = { toleranceHrc: tol, ceiling: 'ASTM A255 initial hardness IH(C)' };
+  const warnAbove = options.warnAboveHrc ?? 2;
+  const failAbove = options.failAboveHrc ?? 5;
+  const title = 'Quenched-end hardness plausible for the carbon content';
+  const threshold = { warnAboveHrc: warnAbove, failAboveHrc: failAbove, reference: 'ASTM A255 initial hardness IH(C), fully martensitic' };
   const r = sortedReadings(readings);
   if (r.length === 0) {
     return { check: 'martensite_ceiling', title, verdict: 'not_applicable', summary: 'no readings', threshold, values: { carbon, ceilingHrc: null, hardestMm: null, hardestHrc: null, excess: null, carbonFlags: [] } };
@@ -37,13 +44,14 @@ export function checkMartensiteCeiling(
   const hardest = r.reduce((m, p) => (p.hrc > m.hrc ? p : m), r[0]);
   const ceiling = bounds.fullyMartensiticHrc;
   const excess = hardest.hrc - ceiling;
-  const verdict = excess > tol ? 'fail' : excess > 0 ? 'warn' : 'pass';
+  const verdict = excess > failAbove ? 'fail' : excess > warnAbove ? 'warn' : 'pass';
   const carbonFlags = bounds.outOfRange.map((f) => f.note);
   const c = ceiling.toFixed(1);
   const summary =
-    verdict === 'pass'
-      ? `hardest reading ${hardest.hrc} HRC at ${describeDistance(hardest.mm, hardest.label)} is at or below ${c} HRC, fully martensitic hardness for ${carbon} % C.`
-      : `hardest reading ${hardest.hrc} HRC at ${describeDistance(hardest.mm, hardest.label)} is ${excess.toFixed(1)} HRC above ${c} HRC, fully martensitic hardness for ${carbon} % C${verdict === 'warn' ? ` (within the ${tol} HRC tolerance)` : ''}.`;
+    `hardest reading ${hardest.hrc} HRC at ${describeDistance(hardest.mm, hardest.label)} is ` +
+    (excess <= 0 ? `at or below` : `${excess.toFixed(1)} HRC above`) +
+    ` ${c} HRC, the expected hardness of fully martensitic steel with ${carbon} % C` +
+    (verdict === 'pass' ? '.' : verdict === 'warn' ? ` (more than ${warnAbove} HRC above: worth a look).` : ` (more than ${failAbove} HRC above: not plausible for this carbon).`);
   return {
     check: 'martensite_ceiling',
     title,
