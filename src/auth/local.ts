@@ -17,7 +17,28 @@ export function isLoopbackHost(host: string): boolean {
   return host.trim().toLowerCase() === 'localhost' || isLoopbackAddress(host);
 }
 
-const FORWARDING_HEADERS = ['forwarded', 'x-forwarded-for', 'x-real-ip'];
+// A proxy on the same host that adds none of these makes every caller look local: put a token in place
+// before serving through one (README, Access).
+const FORWARDING_HEADERS = ['forwarded', 'x-forwarded-for', 'x-real-ip', 'x-forwarded-host', 'x-forwarded-proto', 'via'];
+
+/**
+ * Whether a token-less request may be trusted as the local administrator's own, beyond its socket:
+ * - for the local administrator, the Host it was addressed to is a loopback name (a page that
+ *   re-points its own domain name at 127.0.0.1, "DNS rebinding", sends its own domain as Host);
+ * - a request that changes data was not sent by a page of another origin (a browser sends Origin, and
+ *   Sec-Fetch-Site, with cross-site requests; OWASP Cross-Site Request Forgery Prevention Cheat Sheet).
+ * Returns the reason to refuse, or null.
+ */
+export function browserAbuseReason(c: Context, options: { loopbackHostOnly: boolean }): string | null {
+  const url = new URL(c.req.url);
+  if (options.loopbackHostOnly && !isLoopbackHost(url.hostname)) return `requests without a token must be addressed to localhost or a loopback address, not ${url.hostname}`;
+  if (['GET', 'HEAD', 'OPTIONS'].includes(c.req.method)) return null;
+  const site = c.req.header('sec-fetch-site');
+  if (site && site !== 'same-origin' && site !== 'none') return 'a page of another site may not change data here';
+  const origin = c.req.header('origin');
+  if (origin !== undefined && origin !== url.origin) return `a page of ${origin} may not change data here`;
+  return null;
+}
 
 export function isLocalRequest(c: Context): boolean {
   if (FORWARDING_HEADERS.some((h) => c.req.header(h) !== undefined)) return false;

@@ -9,7 +9,7 @@ import type { AppEnv, AuthInfo } from '../api/context.ts';
 import { ApiError, errorResponse } from '../api/errors.ts';
 import { ACCESS_RULES, allows, requiredAccess, type AccessRule } from './policy.ts';
 import { AuthorizationHeaderError, bearerToken, hashTokenSecret } from './tokens.ts';
-import { isLocalRequest } from './local.ts';
+import { browserAbuseReason, isLocalRequest } from './local.ts';
 
 export type AfterWriteHook = (tx: Executor, written: ApplyResult) => Promise<void>;
 
@@ -46,7 +46,12 @@ export function accessControl(options: AccessControlOptions): MiddlewareHandler<
       auth = { name: found.name, role: found.role, ...(found.mill ? { millScope: found.mill } : {}) };
     } else {
       if (await hasActiveTokens(db)) return unauthorized(c, 'This service needs a token: send "Authorization: Bearer <token>".');
-      if (isLocalRequest(c)) auth = LOCAL_ADMIN;
+      const local = isLocalRequest(c);
+      if (local || allowOpen) {
+        const abuse = browserAbuseReason(c, { loopbackHostOnly: local && !allowOpen });
+        if (abuse) return errorResponse(c, 403, 'cross_site_refused', `Refused without a token: ${abuse}. Create a token, or use the service from its own pages.`);
+      }
+      if (local) auth = LOCAL_ADMIN;
       else if (allowOpen) auth = { name: 'open', role: 'admin' };
       else {
         return errorResponse(

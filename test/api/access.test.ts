@@ -221,3 +221,34 @@ describe('a mill token and dry runs', () => {
     expect(JSON.stringify(r.body)).not.toMatch(/differences|heatId/);
   });
 });
+
+describe('without tokens: pages of other sites cannot act as the local administrator', () => {
+  // OWASP Cross-Site Request Forgery Prevention Cheat Sheet: check Origin / Sec-Fetch-Site on requests that change data.
+  test('a cross-site POST is refused, a same-origin one is served, reads stay open', async () => {
+    const open = await createTestApp();
+    try {
+      const body = JSON.stringify({ code: 'X1', name: 'X one' });
+      const foreign = await open.request('POST', 'http://localhost/api/v1/mills', body, { 'content-type': 'text/plain', origin: 'https://pages.example' });
+      expect(foreign.status).toBe(403);
+      expect(foreign.body.error.code).toBe('cross_site_refused');
+      const fetchMeta = await open.request('POST', 'http://localhost/api/v1/mills', body, { 'content-type': 'application/json', 'sec-fetch-site': 'cross-site' });
+      expect(fetchMeta.status).toBe(403);
+      const own = await open.request('POST', 'http://localhost/api/v1/mills', body, { 'content-type': 'application/json', origin: 'http://localhost' });
+      expect(own.status).toBe(200);
+      expect((await open.request('GET', 'http://localhost/api/v1/mills', undefined, { origin: 'https://pages.example' })).status).toBe(200);
+    } finally {
+      await open.close();
+    }
+  });
+
+  test('a request addressed to another host name (DNS rebinding) is refused', async () => {
+    const open = await createTestApp();
+    try {
+      const r = await open.request('GET', 'http://rebound.example:8080/api/v1/mills');
+      expect(r.status).toBe(403);
+      expect(r.body.error.message).toMatch(/addressed to localhost/);
+    } finally {
+      await open.close();
+    }
+  });
+});
