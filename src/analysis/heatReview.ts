@@ -101,7 +101,8 @@ export async function heatReview(db: Db, heatId: number): Promise<HeatReview> {
   let prediction: CurvePrediction | null = null;
   let predictionProblem: string | null = null;
   try {
-    prediction = await predictCurve(db, { grade: heat.grade, mill: heat.mill, chemistry, grainSize: heat.grainSize, onDate: heat.castDate });
+    // Out of sample where possible: a model (or calibration history) that has seen this heat understates |z|.
+    prediction = await predictCurve(db, { grade: heat.grade, mill: heat.mill, chemistry, grainSize: heat.grainSize, onDate: heat.castDate, trainedBefore: heat.castDate });
     const mean = prediction.points.filter((p) => p.sd !== null).map((p) => ({ mm: p.distanceMm, mean: p.hrc, sd: p.sd! }));
     const millTest = current.find((t) => t.source === 'mill_certificate') ?? current[0];
     if (millTest && mean.length) checks.push({ ...checkAgainstPrediction(millTest.readings.map((r) => ({ mm: r.distanceMm, hrc: r.hrc })), mean), testId: millTest.id });

@@ -9,14 +9,22 @@
 //    predictive SDs and R the residual correlation between distances, by seeded Monte Carlo (xoshiro128**
 //    with Box–Muller normals, src/stats/random.ts) through the Cholesky factor; the Monte Carlo standard
 //    error √(p(1 − p)/N) is given. The normal stands in for the t here (ν is large for any usable model).
-//  - Published predictor (ASTM A255 calculation, else Just 1969) when the grade has no plant model: its
-//    error SD is the RMSE of observed − published on the grade's own history at that distance (when at
-//    least 5 heats), otherwise no interval is given.
+//  - Published predictor (ASTM A255 calculation, else Just 1969) when the grade has no plant model,
+//    bias-corrected on the grade's own history at each distance: with e_i = observed − published over the
+//    n heats there (n >= 5), centre = published + ē and predictive SD s·√(1 + 1/n), s the sample SD of
+//    the e_i (n − 1); interval centre ± t(1 − α/2, n − 1)·s·√(1 + 1/n) and band probabilities from the t on
+//    n − 1 df: the prediction interval for one new observation of a normal sample (Hahn & Meeker 1991,
+//    Statistical Intervals, §4.6; Montgomery & Runger, Applied Statistics and Probability for Engineers,
+//    §8.7). The raw RMSE is not used as the SD: RMSE² = ē² + ((n − 1)/n)s², so it would leave the centre
+//    off by the bias and widen both sides, hiding low outliers. Fewer than 5 heats: no interval.
+//  - trainedBefore (e.g. a heat's cast date): prefer the newest model whose training window ends before
+//    that date, and limit the published predictor's history to heats cast before it, so that the heat
+//    under review is not in the data the prediction learnt from (in-sample residuals are too small).
 import { CholeskyDecomposition, Matrix } from 'ml-matrix';
 import type { Db } from '../db/connection.ts';
-import { getModel, latestModel } from '../db/models.ts';
+import { getModel, latestModel, listModels } from '../db/models.ts';
 import { isotonicRegression } from '../stats/isotonic.ts';
-import { normalCdf, normalQuantile, tCdf, tQuantile } from '../stats/distributions.ts';
+import { tCdf, tQuantile } from '../stats/distributions.ts';
 import { createRng } from '../stats/random.ts';
 import type { Band } from '../hardenability/bands.ts';
 import type { Chemistry } from '../hardenability/types.ts';
@@ -50,6 +58,8 @@ export interface PredictedPointView {
   adjustedForMonotonicity: boolean;
   /** Predictive standard deviation (null: unknown). */
   sd: number | null;
+  /** Degrees of freedom of the t behind the interval and probabilities (null: no SD). */
+  df: number | null;
   minHrc: number | null;
   maxHrc: number | null;
   /** Probability of this point meeting its band limits (null: no limit here or no SD). */
@@ -71,7 +81,26 @@ export interface WholeBandProbability {
 
 export type AnsweredBy =
   | { type: 'plant_model'; modelId: number; version: number; grade: string; mill: string | null; trainedFrom: string | null; trainedTo: string | null; heatCount: number }
-  | { type: 'published_predictor'; methods: string[]; reason: string };
+  | { type: 'published_predictor'; methods: string[]; reason: string; biasCorrection: PublishedBiasCorrection };
+
+/** How the published curve was corrected on the plant's history, per distance. */
+export interface PublishedBiasCorrection {
+  /** Heats of the history with a published value at one distance or more. */
+  heats: number;
+  perDistance: Array<{ distanceMm: number; n: number; bias: number; sd: number | null; applied: boolean }>;
+}
+
+/** Error of the published predictor at one distance: n, mean (bias), sample SD (n − 1) and RMSE of observed − published. */
+export interface PublishedError {
+  n: number;
+  bias: number;
+  /** Null when n < 2. */
+  sd: number | null;
+  rmse: number;
+}
+
+/** Fewest heats at a distance for a bias-corrected published interval. */
+export const MIN_PUBLISHED_HEATS = 5;
 
 export interface CurvePrediction {
   answeredBy: AnsweredBy;
@@ -178,6 +207,7 @@ function pointFromFit(fit: DistanceModel, row: number[], level: number, band: Ba
     raw: { hrc, lower, upper },
     adjustedForMonotonicity: false,
     sd,
+    df: fit.dfResidual,
     minHrc,
     maxHrc,
     probabilityInBand,
@@ -238,9 +268,9 @@ export function predictWithModel(model: StoredModel, input: PredictionInput, ban
   };
 }
 
-/** Error of the published predictor on a history, per distance: n, RMSE and bias of observed − published. */
-export function publishedErrors(history: readonly HeatCurve[], distancesMm: readonly number[]): Map<number, { n: number; rmse: number; bias: number }> {
-  const out = new Map<number, { n: number; rmse: number; bias: number }>();
+/** Error of the published predictor on a history, per distance: n, bias, sample SD and RMSE of observed − published. */
+export function publishedErrors(history: readonly HeatCurve[], distancesMm: readonly number[]): Map<number, PublishedError> {
+  const out = new Map<number, PublishedError>();
   const heats = new Map(groupByHeat(history).map((g) => [g[0].heatId, g[0]]));
   const curves = new Map([...heats.values()].map((h) => [h.heatId, publishedCurve(h.chemistry, h.grainSize, distancesMm)]));
   for (const d of distancesMm) {
@@ -249,44 +279,68 @@ export function publishedErrors(history: readonly HeatCurve[], distancesMm: read
       const v = publishedAt(curves.get(p.heatId)!, d);
       if (v) errs.push(p.value - v.hrc);
     }
-    if (errs.length) out.set(d, { n: errs.length, rmse: Math.sqrt(errs.reduce((s, e) => s + e * e, 0) / errs.length), bias: errs.reduce((a, b) => a + b, 0) / errs.length });
+    if (errs.length === 0) continue;
+    const n = errs.length;
+    const bias = errs.reduce((a, b) => a + b, 0) / n;
+    const sd = n >= 2 ? Math.sqrt(errs.reduce((s, e) => s + (e - bias) ** 2, 0) / (n - 1)) : null;
+    out.set(d, { n, bias, sd, rmse: Math.sqrt(errs.reduce((s, e) => s + e * e, 0) / n) });
   }
   return out;
 }
 
-/** Prediction by the published predictor (pure); errors from the grade's history when there is some. */
+/**
+ * Prediction by the published predictor (pure), bias-corrected per distance on the grade's history when
+ * it holds at least MIN_PUBLISHED_HEATS heats there (see the module header); otherwise the raw published
+ * value without an interval. historyHeats: heats in that history (for the note).
+ */
 export function predictWithPublished(
   input: PredictionInput,
   band: Band | null,
   distancesMm: readonly number[],
-  errors: Map<number, { n: number; rmse: number; bias: number }>,
+  errors: Map<number, PublishedError>,
   reason: string,
-  options: PredictionOptions = {},
+  options: PredictionOptions & { historyHeats?: number } = {},
 ): CurvePrediction {
   const level = options.level ?? 0.95;
-  const zq = normalQuantile(1 - (1 - level) / 2);
+  if (!(level > 0 && level < 1)) throw invalidInput('the interval level must be between 0 and 1');
   const pub = publishedCurve(input.chemistry, input.grainSize, distancesMm);
   const notes = [reason, ...pub.warnings];
   const raw: PredictedPointView[] = [];
+  const perDistance: PublishedBiasCorrection['perDistance'] = [];
   for (const d of distancesMm) {
     const v = publishedAt(pub, d);
     if (!v) continue;
     const e = [...errors].find(([k]) => Math.abs(k - d) <= 1e-6)?.[1];
-    const sd = e && e.n >= 5 ? e.rmse : null;
+    const applied = e !== undefined && e.n >= MIN_PUBLISHED_HEATS && e.sd !== null && e.sd > 0;
+    if (e) perDistance.push({ distanceMm: d, n: e.n, bias: e.bias, sd: e.sd, applied });
+    const hrc = applied ? v.hrc + e.bias : v.hrc;
+    const df = applied ? e.n - 1 : null;
+    const sd = applied ? e.sd! * Math.sqrt(1 + 1 / e.n) : null;
+    const tq = df === null ? null : tQuantile(1 - (1 - level) / 2, df);
     const { minHrc, maxHrc } = limitAt(band, d);
-    const lower = sd === null ? null : v.hrc - zq * sd;
-    const upper = sd === null ? null : v.hrc + zq * sd;
+    const lower = sd === null ? null : hrc - tq! * sd;
+    const upper = sd === null ? null : hrc + tq! * sd;
     const probabilityInBand =
       sd === null || (minHrc === null && maxHrc === null)
         ? null
-        : (maxHrc === null ? 1 : normalCdf((maxHrc - v.hrc) / sd)) - (minHrc === null ? 0 : normalCdf((minHrc - v.hrc) / sd));
-    raw.push({ distanceMm: d, label: labelFor(band, d), hrc: v.hrc, lower, upper, raw: { hrc: v.hrc, lower, upper }, adjustedForMonotonicity: false, sd, minHrc, maxHrc, probabilityInBand, method: v.method });
+        : (maxHrc === null ? 1 : tCdf((maxHrc - hrc) / sd, df!)) - (minHrc === null ? 0 : tCdf((minHrc - hrc) / sd, df!));
+    const method = applied ? `${v.method}, bias-corrected on the plant's history` : v.method;
+    raw.push({ distanceMm: d, label: labelFor(band, d), hrc, lower, upper, raw: { hrc, lower, upper }, adjustedForMonotonicity: false, sd, df, minHrc, maxHrc, probabilityInBand, method });
   }
   for (const m of pub.missing) notes.push(`no published value at ${m.mm} mm: ${m.reason}`);
-  if (raw.some((p) => p.sd === null)) notes.push('where the grade has fewer than 5 heats with a published value, no interval or probability is given');
+  const corrected = perDistance.filter((p) => p.applied);
+  const heats = options.historyHeats ?? Math.max(0, ...perDistance.map((p) => p.n));
+  if (corrected.length) {
+    const ns = corrected.map((p) => p.n);
+    notes.push(
+      `the published curve was bias-corrected on the plant's history (${heats} heat(s); ${Math.min(...ns)}${Math.max(...ns) > Math.min(...ns) ? `–${Math.max(...ns)}` : ''} per distance): ` +
+        `centre = published + mean error (observed − published), SD from the errors' sample SD, t on n − 1 df`,
+    );
+  }
+  if (raw.some((p) => p.sd === null)) notes.push(`where the grade has fewer than ${MIN_PUBLISHED_HEATS} heats with a published value, the raw published value is given without an interval or probability`);
   const points = monotonePoints(raw);
   return {
-    answeredBy: { type: 'published_predictor', methods: [...new Set(points.map((p) => p.method))], reason },
+    answeredBy: { type: 'published_predictor', methods: [...new Set(points.map((p) => p.method))], reason, biasCorrection: { heats, perDistance } },
     level,
     band: band ? bandSummary(band) : null,
     points,
@@ -302,22 +356,49 @@ export interface PredictRequest extends PredictionInput, PredictionOptions {
   modelId?: number;
   /** Band date (default today). */
   onDate?: string;
+  /**
+   * Predict out of sample for something cast on this date: prefer the newest model whose training window
+   * ends before it (else the newest, with a note), and calibrate the published predictor on heats cast before it.
+   */
+  trainedBefore?: string;
 }
 
-/** Predicts with the newest model of the mill (else of the grade), else the published predictor. */
+/** The newest model of the grade for the mill (null: grade-wide) trained on heats before a date, if any. */
+async function modelTrainedBefore(db: Db, grade: string, mill: string | null, date: string): Promise<StoredModel | null> {
+  const header = (await listModels(db, grade)).filter((m) => m.mill === mill && m.trainedTo !== null && m.trainedTo < date).sort((a, b) => b.version - a.version)[0];
+  return header ? ((await getModel(db, header.id)) as StoredModel | null) : null;
+}
+
+/**
+ * Predicts with the newest model of the mill (else of the grade), else the published predictor. With
+ * trainedBefore, a model trained before that date is preferred (see PredictRequest).
+ */
 export async function predictCurve(db: Db, request: PredictRequest): Promise<CurvePrediction> {
   const band = await bandOn(db, request.grade, request.onDate ?? todayIso());
   let model: StoredModel | null = null;
+  const before = request.trainedBefore;
   if (request.modelId !== undefined) {
     model = (await getModel(db, request.modelId)) as StoredModel | null;
     if (!model || model.grade !== request.grade) throw notFound(`model ${request.modelId} of grade ${request.grade} is not on file`);
   } else {
-    model = (request.mill ? ((await latestModel(db, request.grade, request.mill)) as StoredModel | null) : null) ?? ((await latestModel(db, request.grade, null)) as StoredModel | null);
+    if (before !== undefined) {
+      model = (request.mill ? await modelTrainedBefore(db, request.grade, request.mill, before) : null) ?? (await modelTrainedBefore(db, request.grade, null, before));
+    }
+    model ??= (request.mill ? ((await latestModel(db, request.grade, request.mill)) as StoredModel | null) : null) ?? ((await latestModel(db, request.grade, null)) as StoredModel | null);
   }
-  if (model) return predictWithModel(model, request, band, request);
-  const history = await loadSeriesCurves(db, { grade: request.grade, mill: request.mill });
+  if (model) {
+    const out = predictWithModel(model, request, band, request);
+    if (before !== undefined && !(model.trainedTo !== null && model.trainedTo < before)) {
+      out.notes.push(
+        `no model trained only on heats before ${before} is on file: model ${model.id} (trained ${model.trainedFrom ?? 'from the start'} to ${model.trainedTo ?? 'its fit date'}) may include this heat, so its residuals are in-sample and |z| is understated`,
+      );
+    }
+    return out;
+  }
+  const all = await loadSeriesCurves(db, { grade: request.grade, mill: request.mill });
+  const history = before === undefined ? all : all.filter((c) => c.castDate < before);
   const heats = new Set(history.map((c) => c.heatId)).size;
   const distances = [...new Set([...(band?.points.map((p) => p.mm) ?? []), ...distancesOf(history)])].sort((a, b) => a - b);
-  const reason = `no plant model is on file for ${request.grade}${request.mill ? ` (mill ${request.mill} or grade-wide)` : ''}; the history holds ${heats} heat(s) and a model needs at least ${minHeatsFor(DEFAULT_PREDICTORS.length)}: the published predictor answers`;
-  return predictWithPublished(request, band, distances, publishedErrors(history, distances), reason, request);
+  const reason = `no plant model is on file for ${request.grade}${request.mill ? ` (mill ${request.mill} or grade-wide)` : ''}; the history${before === undefined ? '' : ` before ${before}`} holds ${heats} heat(s) and a model needs at least ${minHeatsFor(DEFAULT_PREDICTORS.length)}: the published predictor answers`;
+  return predictWithPublished(request, band, distances, publishedErrors(history, distances), reason, { ...request, historyHeats: heats });
 }

@@ -8,7 +8,10 @@ import { controlChart, univariateChart, type UnivariateReference } from '../../s
 import { freezeBaselines } from '../../src/analysis/baselines.ts';
 import { bandTrial } from '../../src/analysis/bandTrial.ts';
 import { fitAndStoreModel } from '../../src/analysis/chemistryModel.ts';
-import { predictWithModel, wholeBandProbability } from '../../src/analysis/prediction.ts';
+import { predictCurve, predictWithModel, predictWithPublished, publishedErrors, wholeBandProbability } from '../../src/analysis/prediction.ts';
+import { publishedAt, publishedCurve } from '../../src/analysis/publishedPredictor.ts';
+import type { HeatCurve } from '../../src/db/series.ts';
+import { readFileSync } from 'node:fs';
 import { loadSeriesCurves, pointsAt } from '../../src/analysis/seriesData.ts';
 import { predictA255Curve } from '../../src/hardenability/astmA255.ts';
 import { normalCdf } from '../../src/stats/distributions.ts';
@@ -190,6 +193,63 @@ describe('chemistry model and prediction', () => {
     expect(coverage).toBeGreaterThan(0.93);
     expect(coverage).toBeLessThan(0.97);
     expect(Math.abs(predictedInBand / heldOut - observedInBand / heldOut)).toBeLessThan(0.04);
+  });
+
+  test('the published predictor is bias-corrected on the history: centre published + mean error, width t·s·√(1 + 1/n)', () => {
+    // Synthetic history: 10 heats whose error (observed − published) at 5 and 9 mm is exactly 3 + 2·u_i,
+    // u standardised to mean 0 and sample SD 1, so the bias is +3 and the sample SD (n − 1) is 2.
+    const rng = createRng(31);
+    const n = 10;
+    const raw = Array.from({ length: n }, () => rng.normal());
+    const mu = raw.reduce((a, b) => a + b, 0) / n;
+    const sdRaw = Math.sqrt(raw.reduce((a, b) => a + (b - mu) ** 2, 0) / (n - 1));
+    const u = raw.map((x) => (x - mu) / sdRaw);
+    const distances = [5, 9];
+    const history: HeatCurve[] = u.map((ui, i) => {
+      const heat = drawHeat(rng);
+      const pub = publishedCurve(heat.x, heat.x.grainSize, distances);
+      return {
+        heatId: i + 1, heatNumber: `S-${i}`, mill: 'M', castDate: '2023-01-01', grainSize: heat.x.grainSize, chemistry: heat.x,
+        testId: i + 1, source: 'mill_certificate', lotNumber: null,
+        readings: new Map(distances.map((d) => [d, publishedAt(pub, d)!.hrc + 3 + 2 * ui])),
+      };
+    });
+    const errors = publishedErrors(history, distances);
+    expect(errors.get(5)!.bias).toBeCloseTo(3, 10);
+    expect(errors.get(5)!.sd).toBeCloseTo(2, 10);
+    const input = drawHeat(rng).x;
+    const published = publishedCurve(input, input.grainSize, distances);
+    const band = { grade: 'G', version: 1, effectiveFrom: '2020-01-01', status: 'active' as const, kind: 'standard' as const, points: [{ mm: 9, minHrc: publishedAt(published, 9)!.hrc + 3 }] };
+    const r = predictWithPublished({ chemistry: input, grainSize: input.grainSize }, band, distances, errors, 'test', { historyHeats: n });
+    // Prediction interval for one new observation: x̄ ± t(0.975, n − 1)·s·√(1 + 1/n) (Hahn & Meeker 1991,
+    // Statistical Intervals §4.6); t(0.975, 9) = 2.262157 from scipy (test/reference/multiplicity.json).
+    const t975 = (JSON.parse(readFileSync(new URL('../reference/multiplicity.json', import.meta.url), 'utf8')) as { t975: Record<string, number> }).t975['9'];
+    const half = t975 * 2 * Math.sqrt(1 + 1 / n);
+    for (const d of distances) {
+      const pt = r.points.find((p) => p.distanceMm === d)!;
+      const centre = publishedAt(published, d)!.hrc + 3;
+      expect(pt.raw.hrc).toBeCloseTo(centre, 10);
+      expect(pt.raw.lower!).toBeCloseTo(centre - half, 8); // @stdlib t quantile agrees with scipy to ~1e-10
+      expect(pt.raw.upper!).toBeCloseTo(centre + half, 8);
+      expect(pt.df).toBe(n - 1);
+    }
+    // Band minimum at the corrected centre: the t is symmetric, so P(meeting it) = 0.5 exactly.
+    expect(r.points.find((p) => p.distanceMm === 9)!.probabilityInBand).toBeCloseTo(0.5, 12);
+    expect(r.answeredBy).toMatchObject({ type: 'published_predictor', biasCorrection: { heats: n } });
+    expect(r.notes.join(' ')).toMatch(/bias-corrected on the plant's history \(10 heat\(s\)/);
+    // With fewer than 5 heats no interval is given (and no correction applied).
+    const few = predictWithPublished({ chemistry: input, grainSize: input.grainSize }, null, distances, publishedErrors(history.slice(0, 4), distances), 'test');
+    expect(few.points.every((p) => p.lower === null && Math.abs(p.raw.hrc - publishedAt(published, p.distanceMm)!.hrc) < 1e-12)).toBe(true);
+  });
+
+  test('trainedBefore prefers a model whose training window ends before the date, else says the residuals are in-sample', async () => {
+    const chemistry = { C: 0.2, Mn: 0.8, Si: 0.25, Ni: 0.55, Cr: 0.5, Mo: 0.2 };
+    const after = await predictCurve(db.db, { grade: '8620H', mill: 'ANVIL', chemistry, grainSize: 7, trainedBefore: '2022-03-01' });
+    expect(after.answeredBy).toMatchObject({ type: 'plant_model', modelId: model.id });
+    expect(after.notes.join(' ')).not.toMatch(/in-sample/);
+    const inside = await predictCurve(db.db, { grade: '8620H', mill: 'ANVIL', chemistry, grainSize: 7, trainedBefore: '2021-06-01' });
+    expect(inside.answeredBy).toMatchObject({ type: 'plant_model', modelId: model.id });
+    expect(inside.notes.join(' ')).toMatch(/in-sample/);
   });
 
   test('whole-band Monte Carlo: independent points give the product of normal probabilities; identical ones the single one', () => {
