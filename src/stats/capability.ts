@@ -7,22 +7,41 @@
 //   here with the overall n − 1 SD).
 // One-sided band: Cp, Pp, Cpm and the index of the missing side are null; Cpk/Ppk equal the one
 // defined side (common practice).
-// Intervals at confidence 1 − α: Cp, Pp by the chi-square interval Ĉ·√(χ²(α/2, ν)/ν)..Ĉ·√(χ²(1 − α/2, ν)/ν),
-// ν = n − 1 (Montgomery §8.3.5; exact for Pp, the usual approximation for Cp); Cpk, Ppk by
-// Bissell (1990), Applied Statistics 39:313–320: Ĉ ± z(1 − α/2)·√(1/(9n) + Ĉ²/(2(n − 1))).
+// Intervals at confidence 1 − α: Cp, Pp by the chi-square interval Ĉ·√(χ²(α/2, ν)/ν)..Ĉ·√(χ²(1 − α/2, ν)/ν)
+// (Montgomery §8.3.5); Cpk, Ppk by Bissell (1990), Applied Statistics 39:313–320:
+// Ĉ ± z(1 − α/2)·√(1/(9n) + Ĉ²/(2ν)), whose second term is the variance of ln σ̂ (= 1/(2ν)) times Ĉ².
+// ν is the (effective) degrees of freedom of the sigma each index uses, i.e. the ν for which
+// ν·σ̂²/σ² is approximately χ²(ν), matched on Var(σ̂)/σ² ≈ 1/(2ν):
+//   Pp, Ppk: sample SD, ν = n − 1 (exact for Pp).
+//   Cp, Cpk, individuals (MR-bar/d2): ν = 0.62·(n − 1) (Cryer & Ryan 1990, J. Quality Technology 22(3),
+//     "The estimation of sigma for an X chart: MR/d2 or S/c4?"; constant from memory). Cross-check: the
+//     large-n variance of MR-bar/d2 from the bivariate-normal moment E|XY| (ρ = −1/2 between adjacent
+//     differences) is 0.826σ²/(n − 1), i.e. ν ≈ 0.605(n − 1); the simulated coverage test checks 0.62.
+//   Cp, Cpk, subgroups (mean of s_i/c4(n_i)): Var(s_i/c4) = σ²(1 − c4²)/c4² (the same moment as the S chart
+//     limits, Montgomery §6.3; ASTM E2587), so ν = k² / (2·Σ(1 − c4(n_i)²)/c4(n_i)²); for large subgroups
+//     this tends to Σ(n_i − 1) (equal sizes). We use this c4-based form because it is the variance of the
+//     estimator actually used.
+//   A given within sigma (options.within) carries its own ν.
+// Pooling within sigmas of several series (poolWithin): σ² = Σ ν_j σ_j² / Σ ν_j, ν = Σ ν_j (the pooled
+// variance weighted by degrees of freedom, as in the two-sample t test; common practice).
 // Expected nonconforming (normal model): 10⁶·Φ((LSL − μ)/σ) below and 10⁶·Φ((μ − USL)/σ) above.
 // Observed: share of values strictly below LSL / above USL (a value on a limit conforms).
 // Normality: Anderson–Darling (D'Agostino & Stephens 1986). When normality is rejected at level
 // normalityAlpha, percentile indices (Clements 1989, Quality Progress 22(9):95–100; ISO 22514-2)
 // replace 6σ by X(0.99865) − X(0.00135) and μ by the median; here with empirical quantiles
-// (Hyndman & Fan definition 7), which need a large sample to reach the 0.135 % tails.
+// (Hyndman & Fan definition 7), which need a large sample to reach the 0.135 % tails: with type 7 the
+// 0.135 % quantile lies between the two smallest values while (n − 1)·0.00135 < 1, so below
+// n = round(1/0.00135) = 741 the percentile spread is about the sample range, which falls short of the
+// 99.73 % spread and biases the index high (flag percentileFewData, raised only when it is computed).
 // Flags: n < minN (default 25); non-normal; unstable (any point flagged by the chosen Nelson rules,
 // default rule 1, on the individuals chart, or on the standardised X-bar of an X-bar/S chart, or an
-// S chart point beyond its limits).
+// S chart point beyond its limits; with a given within sigma, the individuals rules use that sigma
+// around the series mean).
 import { chiSquareQuantile, normalCdf, normalQuantile } from './distributions.ts';
 import { StatsInputError, assertFinite, quantileSorted } from './descriptive.ts';
 import { andersonDarling, type AndersonDarlingResult } from './andersonDarling.ts';
 import { individualsChart } from './individualsChart.ts';
+import { c4 } from './shewhartConstants.ts';
 import { xbarSChart } from './subgroupCharts.ts';
 import { nelsonRules, type NelsonRule } from './nelsonRules.ts';
 
@@ -46,6 +65,57 @@ export interface CapabilityOptions {
   stabilityRules?: readonly NelsonRule[];
   /** Percentile indices: 'auto' (when normality is rejected), 'always' or 'never' (default 'auto'). */
   percentile?: 'auto' | 'always' | 'never';
+  /**
+   * A within sigma estimated elsewhere (e.g. pooled over mills with poolWithin), used instead of the
+   * sigma of the series itself; individuals data only.
+   */
+  within?: WithinSigma;
+}
+
+/** A within-process sigma and the effective degrees of freedom of its estimator. */
+export interface WithinSigma {
+  sigma: number;
+  df: number;
+}
+
+/** Effective degrees of freedom of MR-bar/d2 on n individuals: 0.62·(n − 1) (Cryer & Ryan 1990; see header). */
+export const MOVING_RANGE_DF_FACTOR = 0.62;
+
+/** Sample size from which the 0.135 % / 99.865 % empirical quantiles leave the extreme values: round(1/0.00135). */
+export const PERCENTILE_MIN_N = Math.round(1 / 0.00135);
+
+/** Effective degrees of freedom of MR-bar/d2 for n individuals (see header). */
+export function movingRangeDf(n: number): number {
+  return MOVING_RANGE_DF_FACTOR * (n - 1);
+}
+
+/** Effective degrees of freedom of the mean of s_i/c4(n_i) over subgroups of the given sizes (see header). */
+export function subgroupSDf(sizes: readonly number[]): number {
+  let v = 0;
+  for (const m of sizes) {
+    const c = c4(m);
+    v += (1 - c * c) / (c * c);
+  }
+  return (sizes.length * sizes.length) / (2 * v);
+}
+
+/** MR-bar/d2 of one series in its own order, with its effective degrees of freedom. */
+export function individualsWithin(values: readonly number[]): WithinSigma {
+  if (values.length < 2) throw new StatsInputError('a within sigma needs at least 2 values');
+  return { sigma: individualsChart(values).sigma, df: movingRangeDf(values.length) };
+}
+
+/** Pooled within sigma: variances weighted by their degrees of freedom (see header). */
+export function poolWithin(parts: readonly WithinSigma[]): WithinSigma {
+  let df = 0;
+  let ss = 0;
+  for (const p of parts) {
+    if (!(p.df > 0) || !(p.sigma >= 0) || !Number.isFinite(p.sigma)) throw new StatsInputError('each pooled part needs sigma >= 0 and df > 0');
+    df += p.df;
+    ss += p.df * p.sigma * p.sigma;
+  }
+  if (!(df > 0)) throw new StatsInputError('pooling needs at least one part');
+  return { sigma: Math.sqrt(ss / df), df };
 }
 
 export interface Interval {
@@ -75,7 +145,7 @@ export interface CapabilityResult {
   median: number;
   sigmaOverall: number;
   sigmaWithin: number;
-  withinMethod: 'moving-range' | 'subgroup-s-over-c4';
+  withinMethod: 'moving-range' | 'subgroup-s-over-c4' | 'given';
   lsl: number | null;
   usl: number | null;
   target: number | null;
@@ -89,14 +159,22 @@ export interface CapabilityResult {
   ppk: number;
   cpm: number | null;
   confidence: number;
-  intervals: { cp: Interval | null; pp: Interval | null; cpk: Interval; ppk: Interval };
+  /**
+   * Intervals, with the degrees of freedom used: df.within (Cp, Cpk; effective, of the within-sigma
+   * estimator) and df.overall (Pp, Ppk; n − 1).
+   */
+  intervals: { cp: Interval | null; pp: Interval | null; cpk: Interval; ppk: Interval; df: { within: number; overall: number } };
   expectedPpm: { within: PpmSplit; overall: PpmSplit };
   observedPpm: PpmSplit;
   normality: AndersonDarlingResult | null;
   percentile: PercentileIndices | null;
   /** Indices flagged by the stability rules (observations for individuals, subgroups otherwise). */
   unstablePoints: number[];
-  flags: { smallSample: boolean; nonNormal: boolean; unstable: boolean };
+  /**
+   * percentileFewData: the percentile indices were computed from fewer than PERCENTILE_MIN_N (741) values,
+   * so their 0.135 % and 99.865 % points are about the minimum and maximum and the index reads high.
+   */
+  flags: { smallSample: boolean; nonNormal: boolean; unstable: boolean; percentileFewData: boolean };
 }
 
 const NO_SPREAD = 'capability is undefined for a series with no spread (sigma = 0)';
@@ -107,8 +185,7 @@ function finiteOrNull(x: number | null | undefined, what: string): number | null
   return x;
 }
 
-function chiSquareInterval(est: number, n: number, confidence: number): Interval {
-  const nu = n - 1;
+function chiSquareInterval(est: number, nu: number, confidence: number): Interval {
   const a = 1 - confidence;
   return {
     lower: est * Math.sqrt(chiSquareQuantile(a / 2, nu) / nu),
@@ -116,9 +193,9 @@ function chiSquareInterval(est: number, n: number, confidence: number): Interval
   };
 }
 
-function bissellInterval(est: number, n: number, confidence: number): Interval {
+function bissellInterval(est: number, n: number, nu: number, confidence: number): Interval {
   const z = normalQuantile(1 - (1 - confidence) / 2);
-  const half = z * Math.sqrt(1 / (9 * n) + (est * est) / (2 * (n - 1)));
+  const half = z * Math.sqrt(1 / (9 * n) + (est * est) / (2 * nu));
   return { lower: est - half, upper: est + half };
 }
 
@@ -157,23 +234,31 @@ export function capability(data: CapabilityData, band: SpecBand, options: Capabi
   const rules = options.stabilityRules ?? [1];
   const percentileMode = options.percentile ?? 'auto';
 
+  const given = options.within;
+  if (given !== undefined && !(Number.isFinite(given.sigma) && given.sigma > 0 && Number.isFinite(given.df) && given.df > 0)) {
+    throw new StatsInputError('a given within sigma needs a positive sigma and positive degrees of freedom');
+  }
   let values: number[];
   let sigmaWithin: number;
+  let withinDf: number;
   let withinMethod: CapabilityResult['withinMethod'];
   let unstablePoints: number[];
   if ('values' in data) {
     values = data.values.slice();
     if (values.length < 2) throw new StatsInputError('capability needs at least 2 values');
     assertFinite(values);
-    const chart = individualsChart(values);
+    const chart = individualsChart(values, given ? { sigma: given.sigma } : {});
     sigmaWithin = chart.sigma;
-    withinMethod = 'moving-range';
+    withinDf = given ? given.df : movingRangeDf(values.length);
+    withinMethod = given ? 'given' : 'moving-range';
     if (!(sigmaWithin > 0)) throw new StatsInputError(NO_SPREAD);
     unstablePoints = nelsonRules(values, { center: chart.center, sigma: chart.sigma }, { rules }).flagged;
   } else {
+    if (given) throw new StatsInputError('a given within sigma applies to individuals data only');
     const chart = xbarSChart(data.subgroups);
     values = data.subgroups.flat();
     sigmaWithin = chart.sigma;
+    withinDf = subgroupSDf(chart.sizes);
     withinMethod = 'subgroup-s-over-c4';
     if (!(sigmaWithin > 0)) throw new StatsInputError(NO_SPREAD);
     const standardised = chart.means.map((m, i) => ((m - chart.center) * Math.sqrt(chart.sizes[i])) / chart.sigma);
@@ -241,16 +326,17 @@ export function capability(data: CapabilityData, band: SpecBand, options: Capabi
     cpm,
     confidence,
     intervals: {
-      cp: within.p === null ? null : chiSquareInterval(within.p, n, confidence),
-      pp: overall.p === null ? null : chiSquareInterval(overall.p, n, confidence),
-      cpk: bissellInterval(within.k, n, confidence),
-      ppk: bissellInterval(overall.k, n, confidence),
+      cp: within.p === null ? null : chiSquareInterval(within.p, withinDf, confidence),
+      pp: overall.p === null ? null : chiSquareInterval(overall.p, n - 1, confidence),
+      cpk: bissellInterval(within.k, n, withinDf, confidence),
+      ppk: bissellInterval(overall.k, n, n - 1, confidence),
+      df: { within: withinDf, overall: n - 1 },
     },
     expectedPpm: { within: expectedPpm(mu, sigmaWithin, lsl, usl), overall: expectedPpm(mu, sigmaOverall, lsl, usl) },
     observedPpm,
     normality,
     percentile,
     unstablePoints,
-    flags: { smallSample: n < minN, nonNormal, unstable: unstablePoints.length > 0 },
+    flags: { smallSample: n < minN, nonNormal, unstable: unstablePoints.length > 0, percentileFewData: percentile !== null && n < PERCENTILE_MIN_N },
   };
 }

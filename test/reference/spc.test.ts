@@ -134,6 +134,9 @@ describe('capability against numpy/scipy', () => {
         if (ref[key] === null) expect(r[key], key).toBeNull();
         else expect(rel(r[key] as number, ref[key]), key).toBeLessThanOrEqual(1e-11);
       }
+      // Cp/Cpk intervals on the effective df 0.62(n − 1) of MR-bar/d2 (Cryer & Ryan 1990), Pp/Ppk on n − 1.
+      expect(r.intervals.df.within).toBeCloseTo(ref.dfWithin, 12);
+      expect(r.intervals.df.overall).toBe(ref.dfOverall);
       if (ref.cpInterval) closeArr([r.intervals.cp!.lower, r.intervals.cp!.upper], ref.cpInterval, 1e-10, 'cp CI');
       if (ref.ppInterval) closeArr([r.intervals.pp!.lower, r.intervals.pp!.upper], ref.ppInterval, 1e-10, 'pp CI');
       closeArr([r.intervals.cpk.lower, r.intervals.cpk.upper], ref.cpkInterval, 1e-10, 'cpk CI');

@@ -160,6 +160,9 @@ fix["cusum"] = cus
 rng = np.random.default_rng(3)
 cap_x = rng.normal(36.2, 1.4, 60)
 d2_2 = 2 / math.sqrt(math.pi)
+# Effective degrees of freedom of MR-bar/d2: 0.62 (n - 1) (Cryer & Ryan 1990, J. Quality Technology 22(3);
+# constant from memory). The sample SD has n - 1.
+MR_DF_FACTOR = 0.62
 
 
 def capability_ref(x, lsl, usl, target, conf=0.95):
@@ -167,8 +170,9 @@ def capability_ref(x, lsl, usl, target, conf=0.95):
     mu = float(np.mean(x))
     so = float(np.std(x, ddof=1))
     sw = float(np.mean(np.abs(np.diff(x)))) / d2_2
-    out = {"n": n, "mean": mu, "sigmaOverall": so, "sigmaWithin": sw}
-    for pre, s in [("c", sw), ("p", so)]:
+    dfw = MR_DF_FACTOR * (n - 1)
+    out = {"n": n, "mean": mu, "sigmaOverall": so, "sigmaWithin": sw, "dfWithin": dfw, "dfOverall": n - 1}
+    for pre, s, nu in [("c", sw, dfw), ("p", so, n - 1)]:
         u = None if usl is None else (usl - mu) / (3 * s)
         l = None if lsl is None else (mu - lsl) / (3 * s)
         p = None if (usl is None or lsl is None) else (usl - lsl) / (6 * s)
@@ -176,10 +180,10 @@ def capability_ref(x, lsl, usl, target, conf=0.95):
         out[pre + "p"], out[pre + "pu"], out[pre + "pl"], out[pre + "pk"] = p, u, l, k
         a = 1 - conf
         if p is not None:
-            out[pre + "pInterval"] = [p * math.sqrt(stats.chi2.ppf(a / 2, n - 1) / (n - 1)),
-                                      p * math.sqrt(stats.chi2.ppf(1 - a / 2, n - 1) / (n - 1))]
+            out[pre + "pInterval"] = [p * math.sqrt(stats.chi2.ppf(a / 2, nu) / nu),
+                                      p * math.sqrt(stats.chi2.ppf(1 - a / 2, nu) / nu)]
         zq = stats.norm.ppf(1 - a / 2)
-        hw = zq * math.sqrt(1 / (9 * n) + k * k / (2 * (n - 1)))
+        hw = zq * math.sqrt(1 / (9 * n) + k * k / (2 * nu))
         out[pre + "pkInterval"] = [k - hw, k + hw]
         below = 0.0 if lsl is None else 1e6 * stats.norm.cdf((lsl - mu) / s)
         above = 0.0 if usl is None else 1e6 * stats.norm.sf((usl - mu) / s)
