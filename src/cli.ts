@@ -64,7 +64,15 @@ program
     const config = loadConfig();
     const format: ImportFormat = opts.format ?? formatOption(extname(file).slice(1).toLowerCase());
     const bytes = new Uint8Array(await readFile(file));
-    const layout = opts.millLayout ? loadMillLayout(JSON.parse(await readFile(opts.millLayout, 'utf8'))) : undefined;
+    let layout;
+    if (opts.millLayout) {
+      try {
+        layout = loadMillLayout(JSON.parse(await readFile(opts.millLayout, 'utf8')));
+      } catch (error) {
+        if (error instanceof SyntaxError) throw new SyntaxError(`${opts.millLayout}: ${error.message}`);
+        throw error;
+      }
+    }
     const database = await openDatabase({ url: config.databaseUrl, dataDir: config.dataDir });
     await database.migrate();
     const bar = process.stderr.isTTY ? new cliProgress.SingleBar({ format: ' {stage} [{bar}] {value}/{total}', hideCursor: true }, cliProgress.Presets.shades_classic) : null;
@@ -118,9 +126,22 @@ registerDemoCommand(program);
 registerRefitCommand(program);
 registerReportCommand(program);
 
+/** Mistakes a user can fix, said in one plain line (the stack only with LOG_LEVEL=debug). */
+function plainMessage(error: Error & { code?: string; path?: string }): string | null {
+  if (error.code === 'ENOENT') return `no such file: ${error.path ?? error.message}`;
+  if (error.code === 'EACCES') return `not allowed to read ${error.path ?? 'the file'}`;
+  if (['ConfigError', 'OpenBindRefused', 'AlertSettingsError', 'InvalidMillLayoutError', 'InvalidArgumentError', 'DemoRefusedError'].includes(error.constructor.name)) return error.message;
+  if (error instanceof SyntaxError) return `a JSON file could not be read: ${error.message}`;
+  return null;
+}
+
 program.parseAsync(process.argv).catch((error: Error) => {
-  const logger = createLogger('error');
-  logger.error({ err: error }, error.message);
+  const plain = plainMessage(error);
+  if (plain && process.env.LOG_LEVEL !== 'debug') {
+    console.error(`endquench: ${plain}`);
+    process.exit(1);
+  }
+  createLogger('error').error({ err: error }, error.message);
   console.error(`endquench: ${error.message}`);
   process.exit(2);
 });

@@ -70,6 +70,8 @@ export async function insertBaselines(db: Db, inputs: readonly BaselineInput[]):
         await tx.execute(sql`select m.id as mill_id, g.id as grade_id from mills m, grades g where m.code = ${b.mill} and g.code = ${b.grade}`),
       );
       if (!ref) throw new BaselineReferenceError(`mill ${b.mill} or grade ${b.grade} is not on file`);
+      // Two freezes of one series take turns, so exactly one baseline stays in force.
+      await tx.execute(sql`select pg_advisory_xact_lock(hashtext(${`baseline:${ref.mill_id}:${ref.grade_id}:${b.source}`}))`);
       await tx.execute(sql`
         update baselines set retired_at = now()
         where mill_id = ${ref.mill_id} and grade_id = ${ref.grade_id} and source = ${b.source}

@@ -137,9 +137,13 @@ export async function listBands(db: Db, gradeCode: string): Promise<BandView[]> 
   }));
 }
 
-/** The active band in force on a date: the active version with the latest effective date not after it. */
+/**
+ * The band in force on a date: of the versions that are not drafts, the one with the latest effective
+ * date not after it (a retired version still governs the dates before its successor took effect; the
+ * same rule as src/hardenability/bands.ts bandInForce).
+ */
 export async function bandInForce(db: Db, gradeCode: string, onDate: string): Promise<BandView | null> {
-  const candidates = (await listBands(db, gradeCode)).filter((b) => b.status === 'active' && b.effectiveFrom <= onDate);
+  const candidates = (await listBands(db, gradeCode)).filter((b) => b.status !== 'draft' && b.effectiveFrom <= onDate);
   candidates.sort((a, b) => b.effectiveFrom.localeCompare(a.effectiveFrom) || b.version - a.version);
   return candidates[0] ?? null;
 }

@@ -44,6 +44,13 @@ export const chemistrySchema = z
     other: z.record(z.string().regex(/^[A-Z][a-z]?$/, 'must be an element symbol'), wtPct).optional(),
   })
   .strict()
+  .superRefine((c, ctx) => {
+    for (const e of Object.keys(c.other ?? {})) {
+      if ((ELEMENTS as readonly string[]).includes(e)) {
+        ctx.addIssue({ code: 'custom', path: ['other', e], message: 'is one of the main elements: give it beside C, Mn, ..., not under other' });
+      }
+    }
+  })
   .refine((c) => ELEMENTS.reduce((sum, e) => sum + (c[e] ?? 0), 0) + Object.values(c.other ?? {}).reduce((a, b) => a + b, 0) < 100, {
     message: 'the listed elements add up to 100 wt% or more',
   });

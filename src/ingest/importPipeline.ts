@@ -56,7 +56,7 @@ export interface ItemOutcome {
   differences?: FieldDifference[];
 }
 
-export type ImportStatus = 'accepted' | 'partially_accepted' | 'rejected' | 'validated' | 'duplicate';
+export type ImportStatus = 'accepted' | 'partially_accepted' | 'rejected' | 'validated' | 'duplicate' | 'failed';
 
 export interface ImportReport {
   importId: number;
@@ -112,7 +112,7 @@ export async function runImport(db: Db, request: ImportRequest): Promise<ImportR
   const [earlier] = rowsOf<{ id: number }>(
     await db.execute(sql`
       select id from imports where sha256 = ${digest} and id <> ${importId}
-        and status in ('accepted', 'partially_accepted') order by id limit 1`),
+        and status = 'accepted' order by id limit 1`),
   );
   if (earlier) {
     const report = emptyReport(importId, 'duplicate');
@@ -136,34 +136,48 @@ export async function runImport(db: Db, request: ImportRequest): Promise<ImportR
   const validCertificates = parsed.certificates.filter((c) => c.value).map((c) => prepareCertificate(c.value!));
   const validTests = parsed.tests.filter((t) => t.value).map((t) => prepareTestRecord(t.value!));
 
-  let written: ApplyResult | null = null;
-  let plan: StorePlan | null = null;
-  const report = await db.transaction(async (tx) => {
-    plan = await planStore(tx, validCertificates, validTests, {
-      revise: Boolean(options.revise),
-      createMissing: Boolean(options.createMissing),
-      onlyMill: options.onlyMill,
+  let report: ImportReport;
+  try {
+    report = await db.transaction(async (tx) => {
+      // Imports touching the same heats take turns (advisory locks in key order, so no deadlock):
+      // the second plans against what the first committed, instead of colliding on unique keys.
+      const keys = [...new Set([...validCertificates.map((c) => c.key), ...validTests.map((t) => t.key)])].sort();
+      if (keys.length) await tx.execute(sql`select pg_advisory_xact_lock(hashtext(k)) from unnest(${sql.param(keys)}::text[]) as k order by k`);
+      const plan = await planStore(tx, validCertificates, validTests, {
+        revise: Boolean(options.revise),
+        // A mill-scoped caller may not add mills or grades to the buyer's catalogue.
+        createMissing: Boolean(options.createMissing) && options.onlyMill === undefined,
+        onlyMill: options.onlyMill,
+      });
+      const outcome = describe(importId, parsed, plan);
+      const clean = outcome.summary.invalid === 0 && outcome.problems.length === 0;
+      // Another mill's data rejects the whole document, whatever acceptValid says.
+      const forbidden = outcome.items.some((i) => i.status === 'forbidden');
+      if (options.dryRun) {
+        // In a dry run the item statuses say what an import would do.
+        outcome.status = 'validated';
+      } else if (forbidden || (!clean && !options.acceptValid) || outcome.summary.valid === 0) {
+        outcome.status = 'rejected';
+        markNotWritten(outcome);
+      } else {
+        const written = await applyInChunks(tx, plan, importId, request.onProgress);
+        await request.afterWrite?.(tx, written);
+        outcome.status = clean ? 'accepted' : 'partially_accepted';
+        outcome.summary.testsAdded = written.testsCreated;
+        outcome.summary.readingsAdded = written.readingsCreated;
+        for (const item of outcome.items) item.heatId ??= written.heatIds.get(item.key);
+        // The archive row changes state in the same transaction as the data: both or neither.
+        await finish(tx, outcome);
+      }
+      return outcome;
     });
-    const outcome = describe(importId, parsed, plan);
-    const clean = outcome.summary.invalid === 0 && outcome.problems.length === 0;
-    if (options.dryRun) {
-      // In a dry run the item statuses say what an import would do.
-      outcome.status = 'validated';
-    } else if (!clean && !options.acceptValid) {
-      outcome.status = 'rejected';
-      markNotWritten(outcome);
-    } else {
-      written = await applyInChunks(tx, plan, importId, request.onProgress);
-      await request.afterWrite?.(tx, written);
-      outcome.status = clean ? 'accepted' : 'partially_accepted';
-      outcome.summary.testsAdded = written.testsCreated;
-      outcome.summary.readingsAdded = written.readingsCreated;
-      for (const item of outcome.items) item.heatId ??= written.heatIds.get(item.key);
-      // The archive row changes state in the same transaction as the data: both or neither.
-      await finish(tx, outcome);
-    }
-    return outcome;
-  });
+  } catch (error) {
+    // Nothing was written; the archive keeps the document and says why.
+    const failed = emptyReport(importId, 'failed');
+    failed.problems.push({ path: '', message: `the import stopped: ${(error as Error).message}` });
+    await finish(db, failed).catch(() => {});
+    throw error;
+  }
   if (report.status !== 'accepted' && report.status !== 'partially_accepted') await finish(db, report);
   return report;
 }

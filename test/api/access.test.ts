@@ -252,3 +252,24 @@ describe('without tokens: pages of other sites cannot act as the local administr
     }
   });
 });
+
+describe('a mill token cannot slip data past its scope', () => {
+  test("accept-valid does not let a mill write its own rows from a document that names another mill's heat", async () => {
+    const before = await heatCount();
+    const doc = JSON.stringify([
+      certificate({ heatNumber: 'B-AV-1', certificateNumber: 'BW-AV-1' }),
+      certificate({ mill: 'OSTRAVEK', heatNumber: 'O-AV-1', certificateNumber: 'OS-AV-1' }),
+    ]);
+    const r = await call('POST', '/api/v1/imports?format=json&acceptValid=true', 'mill', doc);
+    expect(r.status).toBe(403);
+    expect(await heatCount()).toBe(before);
+  });
+
+  test('create-missing is ignored for a mill token: it cannot add a grade to the catalogue', async () => {
+    const r = await call('POST', '/api/v1/certificates?createMissing=true', 'mill', certificate({ heatNumber: 'B-NG-1', certificateNumber: 'BW-NG-1', grade: 'NEW-GRADE-BY-MILL' }));
+    expect(r.status).toBe(422);
+    expect(JSON.stringify(r.body), JSON.stringify(r.body)).toMatch(/grade \\"NEW-GRADE-BY-MILL\\" is not on file/);
+    const grades = await call('GET', '/api/v1/grades', 'viewer');
+    expect(grades.body.map((g: { code: string }) => g.code)).not.toContain('NEW-GRADE-BY-MILL');
+  });
+});

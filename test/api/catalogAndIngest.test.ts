@@ -127,3 +127,21 @@ describe('band points beyond the specimen', () => {
     expect(r.body.error.message).toMatch(/longer than the end-quench specimen/);
   });
 });
+
+describe('one certificate per request, and archived names', () => {
+  test('POST /certificates takes one object; an array is sent to /imports instead', async () => {
+    const r = await t.request('POST', '/api/v1/certificates', [certificate({ heatNumber: 'ARR-1' })]);
+    expect(r.status).toBe(400);
+    expect(r.body.error.code).toBe('one_certificate_only');
+  });
+
+  test('an archived file with a non-ASCII name downloads with an RFC 6266 filename*', async () => {
+    const form = new FormData();
+    form.append('file', new File([JSON.stringify(certificate({ heatNumber: 'NAME-1' }))], 'Třinec-certifikát.json', { type: 'application/json' }));
+    const up = await t.request('POST', '/api/v1/imports', form);
+    expect(up.status).toBe(201);
+    const download = await t.app.request(`/api/v1/imports/${up.body.importId}?download=true`);
+    expect(download.status).toBe(200);
+    expect(download.headers.get('content-disposition')).toContain(`filename*=UTF-8''${encodeURIComponent('Třinec-certifikát.json')}`);
+  });
+});

@@ -18,7 +18,8 @@ export interface TestDatabase extends Database {
 export async function createTestDatabase(): Promise<TestDatabase> {
   const serverUrl = process.env.TEST_DATABASE_URL;
   if (serverUrl) return onServer(serverUrl);
-  if (dockerMayAnswer()) {
+  // TEST_DATABASE=pglite skips the Docker probe (CI's first pass runs on the embedded database on purpose).
+  if (process.env.TEST_DATABASE !== 'pglite' && dockerMayAnswer()) {
     const viaDocker = await inContainer().catch(() => null);
     if (viaDocker) return viaDocker;
   }

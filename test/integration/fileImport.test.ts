@@ -86,4 +86,10 @@ describe('the import command', () => {
     expect(accepted.status, accepted.stderr).toBe(0);
     expect(accepted.stdout).toMatch(/99 heat\(s\) new/);
   });
+
+  test('a missing file is one plain line and exit code 1, not a stack trace', () => {
+    const r = cli('import', join(dir, 'nowhere.csv'));
+    expect(r.status).toBe(1);
+    expect(r.stderr.trim()).toBe(`endquench: no such file: ${join(dir, 'nowhere.csv')}`);
+  });
 });

@@ -76,3 +76,42 @@ describe('JSON certificate import', () => {
     expect(again).toMatchObject({ status: 'duplicate', duplicateOf: first.importId });
   });
 });
+
+describe('robustness of the import', () => {
+  test('an accept-valid import that could write nothing is rejected, and the same file goes in once its mill is on file', async () => {
+    const doc = json([certificate({ mill: 'LATECOMER', heatNumber: 'LC-1' }), certificate({ mill: 'LATECOMER', heatNumber: 'LC-2' })]);
+    const first = await runImport(database.db, { bytes: doc, format: 'json', options: { acceptValid: true } });
+    expect(first.status).toBe('rejected');
+    await database.db.execute(sql`insert into mills (code, name) values ('LATECOMER', 'Latecomer Bar (invented)')`);
+    const again = await runImport(database.db, { bytes: doc, format: 'json', options: { acceptValid: true } });
+    expect(again.status).toBe('accepted');
+    expect(again.summary.created).toBe(2);
+  });
+
+  test('parallel imports of the same new heat take turns: one creates it, the others find it unchanged, none fails', async () => {
+    const bodies = [0, 1, 2, 3].map((i) => json({ ...certificate({ heatNumber: 'PAR-1' }), lots: [{ lotNumber: `P${i}` }] }));
+    const reports = await Promise.all(bodies.map((bytes) => runImport(database.db, { bytes, format: 'json' })));
+    expect(reports.map((r) => r.items[0].status).sort()).toEqual(['created', 'unchanged', 'unchanged', 'unchanged']);
+    const [{ n }] = rowsOf<{ n: number }>(await database.db.execute(sql`select count(*)::int as n from lots l join heats h on h.id = l.heat_id where h.heat_number = 'PAR-1'`));
+    expect(n).toBe(4);
+    const stuck = rowsOf<{ n: number }>(await database.db.execute(sql`select count(*)::int as n from imports where status = 'received'`))[0].n;
+    expect(stuck).toBe(0);
+  });
+
+  test('a main element given again under "other" is refused (it would contradict its own column)', async () => {
+    const report = await runImport(database.db, { bytes: json(certificate({ heatNumber: 'OT-1', chemistry: { C: 0.21, Mn: 0.82, other: { Mn: 1.5 } } })), format: 'json' });
+    expect(report.status).toBe('rejected');
+    expect(report.items[0].problems[0].message).toMatch(/main elements/);
+  });
+
+  test('a failure inside the transaction leaves nothing written and the archive marked failed', async () => {
+    const before = await count('heats');
+    const boom = async () => {
+      throw new Error('rule crashed');
+    };
+    await expect(runImport(database.db, { bytes: json(certificate({ heatNumber: 'FAIL-1' })), format: 'json', afterWrite: boom })).rejects.toThrow('rule crashed');
+    expect(await count('heats')).toBe(before);
+    const [last] = rowsOf<{ status: string }>(await database.db.execute(sql`select status from imports order by id desc limit 1`));
+    expect(last.status).toBe('failed');
+  });
+});

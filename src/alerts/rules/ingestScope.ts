@@ -86,7 +86,8 @@ async function loadScope(tx: Executor, written: ApplyResult, historyDays: number
 export function bandOnDate(bands: readonly BandView[], onDate: string): Band | null {
   let best: BandView | null = null;
   for (const b of bands) {
-    if (b.status !== 'active' || b.effectiveFrom > onDate) continue;
+    // Drafts never govern; a retired version still does for the dates before its successor.
+    if (b.status === 'draft' || b.effectiveFrom > onDate) continue;
     if (!best || b.effectiveFrom > best.effectiveFrom || (b.effectiveFrom === best.effectiveFrom && b.version > best.version)) best = b;
   }
   return best ? toBand(best) : null;

@@ -21,7 +21,8 @@ export async function outOfBandRule(tx: Executor, written: ApplyResult): Promise
   // Each grade's band versions are read once; the version in force is picked per test date.
   const versionsByGrade = new Map<string, Band[]>();
   for (const grade of new Set(tests.map((t) => t.grade))) {
-    versionsByGrade.set(grade, (await listBands(tx as Db, grade)).filter((b) => b.status === 'active').map(toBand));
+    // bandInForce skips drafts; a retired version still governs the dates before its successor.
+    versionsByGrade.set(grade, (await listBands(tx as Db, grade)).map(toBand));
   }
   for (const test of tests) {
     const onDate = test.testDate ?? test.castDate;

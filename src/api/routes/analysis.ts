@@ -7,7 +7,7 @@ import { getModel, listModels } from '../../db/models.ts';
 import { BaselineReferenceError } from '../../db/baselines.ts';
 import { ModelReferenceError } from '../../db/models.ts';
 import { ELEMENTS } from '../../ingest/certificateSchema.ts';
-import { makeDistance, MM_PER_SIXTEENTH } from '../../hardenability/distances.ts';
+import { makeDistance, parseDistanceLabel } from '../../hardenability/distances.ts';
 import { capabilityStudy } from '../../analysis/capabilityStudy.ts';
 import { millDataQuality } from '../../analysis/millDataQuality.ts';
 import { CHART_KINDS, controlChart, type ChartParameters } from '../../analysis/controlCharts.ts';
@@ -35,13 +35,14 @@ const errors = {
   422: json(errorBodySchema, 'Not enough data, or no band in force'),
 };
 
-/** "9" or "9mm" (millimetres) or "J4" (sixteenths of an inch, ASTM A255) to exact mm. */
+/** "9" or "9 mm" (millimetres) or "J4" (sixteenths of an inch, ASTM A255) to exact mm, within the specimen. */
 export function parseDistance(text: string): number {
-  const t = text.trim();
-  const j = /^J\s*(\d+(?:\.\d+)?)$/i.exec(t);
-  const mm = j ? Number(j[1]) * MM_PER_SIXTEENTH : Number(t.replace(/\s*mm$/i, ''));
-  if (!Number.isFinite(mm) || mm <= 0) throw new ApiError(400, 'invalid_request', `distance "${text}" is neither mm (e.g. 9) nor a J position (e.g. J4)`);
-  return mm;
+  try {
+    const d = parseDistanceLabel(text, { bareNumberUnit: 'mm' });
+    return makeDistance(d.value, d.system).mm;
+  } catch (error) {
+    throw new ApiError(400, 'invalid_request', `distance "${text}": ${(error as Error).message}`);
+  }
 }
 
 const STATS_ERRORS = new Set(['StatsInputError', 'PhaseOneError', 'TooFewObservationsError', 'SingularCovarianceError', 'RegressionInputError', 'RankDeficientError', 'CrossValidationError', 'HardenabilityInputError', 'OutsideMethodError']);

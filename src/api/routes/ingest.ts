@@ -81,6 +81,9 @@ export function ingestRoutes(app: OpenAPIHono<AppEnv>, db: Db) {
     const bytes = new Uint8Array(await c.req.arrayBuffer());
     const q = c.req.query();
     const millScope = c.get('auth')?.millScope;
+    if (/^\s*\[/.test(Buffer.from(bytes.subarray(0, 64)).toString('utf8'))) {
+      throw new ApiError(400, 'one_certificate_only', 'Send one certificate as a JSON object here; several go to POST /api/v1/imports as a file.');
+    }
     const report = await runImport(db, {
       bytes,
       format: 'json',
@@ -204,8 +207,11 @@ export function ingestRoutes(app: OpenAPIHono<AppEnv>, db: Db) {
       if (!row) throw new ApiError(404, 'not_found', `import ${id} is not on file`);
       if (c.req.valid('query').download === 'true') {
         const type = row.format === 'json' ? 'application/json' : row.format === 'csv' ? 'text/csv' : 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet';
+        // RFC 6266 / RFC 5987: an ASCII fallback name and the real one, UTF-8 encoded.
+        const name = row.filename ?? `import-${id}.${row.format}`;
+        const ascii = name.replace(/[^\x20-\x7e]/g, '_').replace(/["\\]/g, '');
         return new Response(Buffer.from(row.content), {
-          headers: { 'content-type': type, 'content-disposition': `attachment; filename="${(row.filename ?? `import-${id}.${row.format}`).replace(/"/g, '')}"` },
+          headers: { 'content-type': type, 'content-disposition': `attachment; filename="${ascii}"; filename*=UTF-8''${encodeURIComponent(name)}` },
         }) as never;
       }
       const { content: _content, ...rest } = row;

@@ -105,7 +105,7 @@ export async function millsOverview(db: Db, window: { from?: string; to?: string
     })),
   );
   for (const { grade, versions, all } of loaded) {
-    const activeBand = bandInForce(versions.filter((b) => b.status === 'active'), asOf);
+    const activeBand = bandInForce(versions, asOf);
     const mills = millsOf(all);
     for (const mill of mills) {
       const own = curvesOfMill(all, mill);

@@ -37,7 +37,7 @@ export function gradePage(app: Hono<any>, db: Db) {
     const mill = optionalText(c.req.query('mill'));
     const [mills, views, curves] = await Promise.all([listMills(db), listBands(db, grade.code), loadSeriesCurves(db, { grade: grade.code, mill, ...window, source: 'mill_certificate' })]);
     const versions = views.map(toBand);
-    const active = bandInForce(versions.filter((b) => b.status === 'active'), window.to ?? todayIso());
+    const active = bandInForce(versions, window.to ?? todayIso());
     const curveRows: CurveRow[] = curves.flatMap((cv) =>
       [...cv.readings].map(([mm, hrc]) => ({ curve: cv.testId, group: cv.mill, heat: cv.heatNumber, mm, hrc, outside: outside(active, mm, hrc) })),
     );
