@@ -3,7 +3,7 @@
 import { afterAll, beforeAll, describe, expect, test } from 'vitest';
 import { createTestDatabase, type TestDatabase } from '../helpers/testDatabase.ts';
 import { addBandVersion } from '../../src/db/referenceData.ts';
-import { capabilityStudy } from '../../src/analysis/capabilityStudy.ts';
+import { capabilityAtBand, capabilityStudy } from '../../src/analysis/capabilityStudy.ts';
 import { controlChart, univariateChart, type UnivariateReference } from '../../src/analysis/controlCharts.ts';
 import { freezeBaselines } from '../../src/analysis/baselines.ts';
 import { bandTrial } from '../../src/analysis/bandTrial.ts';
@@ -59,6 +59,48 @@ describe('capability', () => {
     const all = await capabilityStudy(db.db, { grade: '8620H' });
     expect(all.perMill!.map((p) => [p.mill, p.heats])).toEqual([['ANVIL', 150], ['BRAMLEY', 110], ['CORRAN', 90]]);
     expect(all.distances[0].n).toBe(350);
+    // All mills together: σ within pooled from each mill's own MR-bar/d2, variances weighted by their
+    // effective df 0.62(nⱼ − 1) (pooled variance, common practice; Cryer & Ryan 1990 for the df, from memory).
+    const pooledAt5 = all.distances[2];
+    expect(pooledAt5.withinPooledOver).toEqual(['ANVIL', 'BRAMLEY', 'CORRAN']);
+    expect(pooledAt5.result!.withinMethod).toBe('given');
+    const own = all.perMill!.map((p) => p.distances[2].result!);
+    const df = own.reduce((a, r) => a + r.intervals.df.within, 0);
+    expect(pooledAt5.result!.intervals.df.within).toBeCloseTo(df, 10);
+    expect(pooledAt5.result!.sigmaWithin).toBeCloseTo(Math.sqrt(own.reduce((a, r) => a + r.intervals.df.within * r.sigmaWithin ** 2, 0) / df), 10);
+    expect(one.distances[2].withinPooledOver).toBeNull();
+    // The band applied is the one in force on the window's end (today when no end is given).
+    const dated = await capabilityStudy(db.db, { grade: '8620H', mill: 'ANVIL', to: '2021-12-31' });
+    expect(dated.bandInForceOn).toBe('2021-12-31');
+    expect(dated.band.version).toBe(1);
+    expect(all.bandInForceOn).toMatch(/^\d{4}-\d{2}-\d{2}$/);
+  });
+
+  test('two interleaved mills 2 HRC apart, each SD 1: pooled σ within ≈ 1, not ≈ 1.9 across the mills', () => {
+    const rng = createRng(31);
+    const curve = (i: number, mill: string, hrc: number): HeatCurve => ({
+      heatId: i + 1,
+      heatNumber: `H${i + 1}`,
+      mill,
+      castDate: `2023-01-${String(1 + (i % 28)).padStart(2, '0')}`,
+      grainSize: null,
+      chemistry: {},
+      testId: i + 1,
+      source: 'mill_certificate',
+      lotNumber: null,
+      readings: new Map([[5, hrc]]),
+    });
+    const curves = Array.from({ length: 300 }, (_, i) => (i % 2 === 0 ? curve(i, 'EAST', 36 + rng.normal()) : curve(i, 'WEST', 38 + rng.normal())));
+    const band = { grade: 'TEST', version: 3, effectiveFrom: '2020-01-01', status: 'active' as const, kind: 'standard' as const, points: [{ mm: 5, minHrc: 31, maxHrc: 43 }] };
+    const [d] = capabilityAtBand(curves, band);
+    expect(d.withinPooledOver).toEqual(['EAST', 'WEST']);
+    expect(Math.abs(d.result!.sigmaWithin - 1)).toBeLessThan(0.12);
+    // Mixture of two unit-SD mills ±1 about the centre: overall SD ≈ √2, so Cpk > Ppk as it should be.
+    expect(d.result!.cpk).toBeGreaterThan(d.result!.ppk);
+    // The same heats as one mill (moving ranges across the mills): the inflated ≈ 1.9 of the defect.
+    const [naive] = capabilityAtBand(curves.map((c) => ({ ...c, mill: 'ONE' })), band);
+    expect(naive.result!.sigmaWithin).toBeGreaterThan(1.7);
+    expect(naive.withinPooledOver).toBeNull();
   });
 });
 

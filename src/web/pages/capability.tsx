@@ -7,7 +7,7 @@ import type { Db } from '../../db/connection.ts';
 import { capabilityStudy, type DistanceCapability } from '../../analysis/capabilityStudy.ts';
 import { AnalysisError } from '../../analysis/errors.ts';
 import { loadSeriesCurves, pointsAt } from '../../analysis/seriesData.ts';
-import type { CapabilityResult } from '../../stats/capability.ts';
+import { PERCENTILE_MIN_N, type CapabilityResult } from '../../stats/capability.ts';
 import { Caution } from '../components/caution.tsx';
 import { Problem } from '../components/bits.tsx';
 import { SeriesForm } from '../components/seriesForm.tsx';
@@ -25,12 +25,19 @@ export function flagSentences(r: CapabilityResult, values: readonly number[] = [
     out.push(
       `The values do not look normal (Anderson–Darling p = ${fmt(r.normality?.pValue ?? null, 3)}): the normal-based indices and expected PPM may mislead.${r.percentile ? ` The percentile-based Ppk, ${fmt(r.percentile.ppk)}, does not assume normality.` : ''}`,
     );
+    if (r.percentile && r.flags.percentileFewData) {
+      out.push(
+        `The percentile-based Ppk needs about ${PERCENTILE_MIN_N} heats or more: with ${r.n}, its 0.135 % and 99.865 % points are about the lowest and highest heats, which sit inside the true spread, so ${fmt(r.percentile.ppk)} reads too high. Take it as an optimistic figure.`,
+      );
+    }
     if (step !== null && step >= 0.5) out.push(`Every reading is a multiple of ${step} HRC: rounding alone makes a normality test reject in a long series, so judge the shape from the probability plot (a staircase there is the rounding, a bend is not).`);
   }
   if (r.flags.unstable) out.push(`${r.unstablePoints.length} heat(s) fall outside the individuals-chart limits: the process was not stable over this window, so a capability index describes a mixture, not one process. See Trends.`);
   if (out.length === 0) out.push('No flag: enough heats, no sign of non-normality, and no heat outside the control limits.');
   return out;
 }
+
+const FLAG_WORDS: Record<string, string> = { percentileFewData: `percentile Ppk from fewer than ${PERCENTILE_MIN_N} heats: reads high` };
 
 function indexRow(d: DistanceCapability, mill: string | null) {
   const r = d.result;
@@ -56,7 +63,7 @@ function indexRow(d: DistanceCapability, mill: string | null) {
     expectedPpm: r?.expectedPpm.overall.total ?? null,
     observedPpm: r?.observedPpm.total ?? null,
     adP: r?.normality?.pValue ?? null,
-    flags: r ? Object.entries(r.flags).filter(([, v]) => v).map(([k]) => k.replace(/([A-Z])/g, ' $1').toLowerCase()).join(', ') : (d.note ?? ''),
+    flags: r ? Object.entries(r.flags).filter(([, v]) => v).map(([k]) => FLAG_WORDS[k] ?? k.replace(/([A-Z])/g, ' $1').toLowerCase()).join(', ') : (d.note ?? ''),
   };
 }
 
@@ -119,13 +126,16 @@ export function capabilityPage(app: Hono<any>, db: Db) {
       body: (
         <>
           <h1>Capability</h1>
-          <p class="lead">How well does the supply fit the band? Indices against the band in force at the end of the window (version {study.band.version}, from {study.band.effectiveFrom}), {study.heats} heat(s).</p>
+          <p class="lead">
+            How well does the supply fit the band? Indices against the band in force on {study.bandInForceOn}, the end of the window (version {study.band.version}, from {study.band.effectiveFrom}), {study.heats} heat(s).
+            {study.mill ? '' : ' All mills together: Cp and Cpk use the within-heat spread pooled from each mill on its own; Pp and Ppk use the spread of all heats, differences between mills included.'}
+          </p>
           <SeriesForm action="/capability" choice={choice} anyMill />
           <Caution>Capability indices describe the supply as a whole; they neither accept nor reject a heat. Acceptance follows the purchase specification and qualified personnel; statistics do not replace testing.</Caution>
           {kit.chart({
             id: 'ppk',
             title: `Ppk by distance: ${who}`,
-            note: 'Point: Ppk; bar: its 95% interval (Bissell 1990); dashed line: 1.33.',
+            note: `Point: Ppk; bar: its 95% interval (Bissell 1990); dashed line: 1.33. In the table, Ppk (percentile) from fewer than ${PERCENTILE_MIN_N} heats rests on the lowest and highest heats and reads too high.`,
             spec: pagePpkSpec(study),
             table: { columns: INDEX_COLUMNS, rows },
             openUpTo: 40,
