@@ -5,13 +5,19 @@
 // Where the centre and sigma come from, and the chart says which:
 //  - a frozen baseline of the series (phase II), when one is on file; else
 //  - phase I on the requested window itself (trial limits with iterative exclusion of points beyond them).
+// T² phase I excludes iteratively too (retrospective limit revision, Montgomery, Introduction to
+// Statistical Quality Control, §11.3.1 and §5.4; Tracy, Young & Mason 1992): heats above the Beta UCL are
+// dropped, the mean, covariance and Beta UCL re-estimated on the m that remain, until a pass drops none,
+// T2_MAX_ITERATIONS passes have run, or dropping would leave fewer than p + 2 heats (then the last
+// estimate is kept and converged is false). The frozen phase II F limit uses the m that remain; dropped
+// baseline heats are plotted against it (they are not in the estimate) and listed in the limits origin.
 import type { Db } from '../db/connection.ts';
 import { activeBaseline, listBaselines, type BaselineRecord } from '../db/baselines.ts';
 import { estimateIndividualsLimits, applyIndividualsLimits, type FrozenIndividualsLimits } from '../stats/phaseOne.ts';
 import { ewmaChart } from '../stats/ewma.ts';
 import { cusumChart } from '../stats/cusum.ts';
 import { NELSON_RULE_DESCRIPTIONS, ALL_NELSON_RULES, type NelsonRule } from '../stats/nelsonRules.ts';
-import { applyT2, freezeT2, hotellingT2PhaseOne, type T2Contribution } from '../stats/hotellingT2.ts';
+import { applyT2, freezeT2, hotellingT2PhaseOne, type HotellingPhaseOne, type T2Contribution } from '../stats/hotellingT2.ts';
 import { bandOn, labelFor } from './bandOf.ts';
 import { insufficientData, invalidInput } from './errors.ts';
 import { distancesOf, groupByHeat, loadSeriesCurves, matchDistance, pointsAt, todayIso, type HeatCurve, type SeriesPoint, type SeriesQuery, type SeriesSource } from './seriesData.ts';
@@ -44,6 +50,9 @@ export type LimitsOrigin =
       createdBy: string | null;
       createdAt: string;
       reason: string | null;
+      /** T² only: baseline heats left out of the estimate by phase I exclusion, and whether it converged. */
+      excludedHeats?: string[];
+      converged?: boolean;
     }
   | { type: 'phase_one_on_window'; window: { from: string | null; to: string | null }; excludedHeats: string[]; converged: boolean };
 
@@ -211,6 +220,44 @@ export function curveRows(curves: readonly HeatCurve[], distancesMm: readonly nu
   return { rows, skipped };
 }
 
+/** Most estimate-and-exclude passes of T² phase I (as for the individuals chart, src/stats/phaseOne.ts). */
+export const T2_MAX_ITERATIONS = 10;
+
+export interface T2PhaseOneResult {
+  /** Phase I on the retained rows (its t2 and signals index into `kept`). */
+  final: HotellingPhaseOne;
+  /** Indices of the rows in the estimate, ascending. */
+  kept: number[];
+  /** Indices of the rows dropped, ascending. */
+  excluded: number[];
+  iterations: number;
+  converged: boolean;
+}
+
+/**
+ * T² phase I with iterative exclusion (see the module header): drop rows above the Beta UCL, re-estimate
+ * on the rest, until none is dropped, maxIterations passes, or fewer than p + 2 rows would remain. Pure.
+ */
+export function t2PhaseOneWithExclusion(rows: readonly (readonly number[])[], alpha: number, maxIterations = T2_MAX_ITERATIONS): T2PhaseOneResult {
+  if (!(Number.isInteger(maxIterations) && maxIterations >= 1)) throw invalidInput('maxIterations must be a positive integer');
+  const p = rows[0]?.length ?? 0;
+  let kept = rows.map((_, i) => i);
+  let final = hotellingT2PhaseOne(rows, { alpha });
+  let iterations = 1;
+  let converged = final.signals.length === 0;
+  while (!converged && iterations < maxIterations) {
+    const drop = new Set(final.signals.map((j) => kept[j]));
+    const next = kept.filter((i) => !drop.has(i));
+    if (next.length < p + 2) break;
+    kept = next;
+    final = hotellingT2PhaseOne(kept.map((i) => rows[i]), { alpha });
+    iterations++;
+    converged = final.signals.length === 0;
+  }
+  const inKept = new Set(kept);
+  return { final, kept, excluded: rows.map((_, i) => i).filter((i) => !inKept.has(i)), iterations, converged };
+}
+
 /** Hotelling T² of the whole curve (pure). With a reference window: phase I there, phase II after it. */
 export function t2Chart(
   curves: readonly HeatCurve[],
@@ -231,26 +278,37 @@ export function t2Chart(
   if (reference) {
     const ref = curveRows(reference.curves, distancesMm).rows;
     if (ref.length < p + 2) throw insufficientData(`the baseline window holds ${ref.length} complete curve(s): T² needs at least ${p + 2}`);
-    const one = hotellingT2PhaseOne(ref.map((r) => r.row), { alpha: parameters.alpha });
+    const phaseOne = t2PhaseOneWithExclusion(ref.map((r) => r.row), parameters.alpha);
+    const one = phaseOne.final;
     const frozen = freezeT2(one);
     const two = applyT2(frozen, rows.map((r) => r.row));
-    const inRef = new Map(ref.map((r, i) => [r.heat.heatId, i]));
+    // Retained baseline heats: their phase I T² and Beta UCL; dropped ones: against the frozen estimate and F UCL.
+    const retained = new Map(phaseOne.kept.map((k, j) => [ref[k].heat.heatId, j]));
+    const inRef = new Set(ref.map((r) => r.heat.heatId));
     phase = rows.map((r) => (inRef.has(r.heat.heatId) ? 'baseline' : 'monitoring'));
-    t2 = rows.map((r, i) => (inRef.has(r.heat.heatId) ? one.t2[inRef.get(r.heat.heatId)!] : two.t2[i]));
-    ucls = rows.map((r) => (inRef.has(r.heat.heatId) ? one.ucl : frozen.ucl));
-    contributions = two.contributions.filter((c) => phase[c.index] === 'monitoring');
+    t2 = rows.map((r, i) => (retained.has(r.heat.heatId) ? one.t2[retained.get(r.heat.heatId)!] : two.t2[i]));
+    ucls = rows.map((r) => (retained.has(r.heat.heatId) ? one.ucl : frozen.ucl));
+    contributions = two.contributions.filter((c) => !retained.has(rows[c.index].heat.heatId));
     for (const c of one.contributions) {
-      const i = rows.findIndex((r) => r.heat.heatId === ref[c.index].heat.heatId);
+      const i = rows.findIndex((r) => r.heat.heatId === ref[phaseOne.kept[c.index]].heat.heatId);
       if (i >= 0) contributions.push({ ...c, index: i });
     }
-    origin = reference.origin;
+    origin = { ...reference.origin, excludedHeats: phaseOne.excluded.map((k) => ref[k].heat.heatNumber), converged: phaseOne.converged };
   } else {
-    const one = hotellingT2PhaseOne(rows.map((r) => r.row), { alpha: parameters.alpha });
-    t2 = one.t2;
-    ucls = rows.map(() => one.ucl);
+    const phaseOne = t2PhaseOneWithExclusion(rows.map((r) => r.row), parameters.alpha);
+    const one = phaseOne.final;
+    const kept = new Map(phaseOne.kept.map((k, j) => [k, j]));
+    const frozen = phaseOne.excluded.length ? freezeT2(one) : null;
+    const two = frozen ? applyT2(frozen, phaseOne.excluded.map((k) => rows[k].row)) : null;
+    const dropped = new Map(phaseOne.excluded.map((k, j) => [k, j]));
+    t2 = rows.map((_, i) => (kept.has(i) ? one.t2[kept.get(i)!] : two!.t2[dropped.get(i)!]));
+    ucls = rows.map((_, i) => (kept.has(i) ? one.ucl : frozen!.ucl));
     phase = rows.map(() => 'baseline');
-    contributions = one.contributions;
-    origin = { type: 'phase_one_on_window', window: meta.window, excludedHeats: [], converged: true };
+    contributions = [
+      ...one.contributions.map((c) => ({ ...c, index: phaseOne.kept[c.index] })),
+      ...(two?.contributions.map((c) => ({ ...c, index: phaseOne.excluded[c.index] })) ?? []),
+    ];
+    origin = { type: 'phase_one_on_window', window: meta.window, excludedHeats: phaseOne.excluded.map((k) => rows[k].heat.heatNumber), converged: phaseOne.converged };
   }
   const points: ChartPoint[] = rows.map((r, i) => ({
     index: i,

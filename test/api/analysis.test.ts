@@ -126,8 +126,12 @@ describe('charts and baselines', () => {
     const shifted = t2.body.points.filter((p: { index: number }) => p.index >= SHIFT_AT);
     const signalled = new Set<number>(t2.body.signals[0].points);
     const mean = (xs: Array<{ plotted: number }>) => xs.reduce((a, p) => a + p.plotted, 0) / xs.length;
-    const reference = t2.body.points.filter((p: { phase: string }) => p.phase === 'baseline');
-    // Phase I identity: Σ (x_i − x̄)ᵀ S⁻¹ (x_i − x̄) = tr(S⁻¹ (m − 1) S) = (m − 1) p, so the mean T² is p(m − 1)/m.
+    // Phase I drops baseline heats above the Beta limit before freezing and lists them (none need be here).
+    expect(t2.body.limitsFrom).toEqual(expect.objectContaining({ excludedHeats: expect.any(Array), converged: true }));
+    const dropped = new Set<string>(t2.body.limitsFrom.excludedHeats);
+    const reference = t2.body.points.filter((p: { phase: string; heatNumber: string }) => p.phase === 'baseline' && !dropped.has(p.heatNumber));
+    // Phase I identity on the heats in the estimate: Σ (x_i − x̄)ᵀ S⁻¹ (x_i − x̄) = tr(S⁻¹ (m − 1) S) = (m − 1) p,
+    // so the mean T² is p(m − 1)/m.
     expect(mean(reference)).toBeCloseTo((8 * (reference.length - 1)) / reference.length, 9);
     // A uniform 5 HRC step lies along the curve's main direction of variation (chemistry moves every
     // distance together), where T² is least sensitive; it still triples the mean T² and raises signals.
@@ -183,6 +187,9 @@ describe('models and prediction', () => {
     expect(r.body.answeredBy.reason).toMatch(/3 heat\(s\).*published predictor answers/);
     expect(r.body.answeredBy.methods).toContain('ASTM A255 calculated hardenability');
     expect(r.body.points.every((p: { lower: number | null }) => p.lower === null)).toBe(true);
+    // Three heats are too few to bias-correct the published curve (5 needed): no correction is applied.
+    expect(r.body.answeredBy.biasCorrection.heats).toBe(3);
+    expect(r.body.answeredBy.biasCorrection.perDistance.every((d: { applied: boolean }) => !d.applied)).toBe(true);
   });
 
   test('refit makes the next versions', async () => {
@@ -205,6 +212,11 @@ describe('heat review', () => {
     );
     for (const c of r.body.checks) expect(c).toEqual(expect.objectContaining({ verdict: expect.any(String), summary: expect.any(String), threshold: expect.any(Object), values: expect.any(Object) }));
     expect(r.body.prediction.answeredBy.type).toBe('plant_model');
+    // Out of sample: the grade-wide model trained to 2021-12-31 answers for a heat cast in 2022.
+    expect(r.body.prediction.answeredBy.trainedTo < shifted.castDate).toBe(true);
+    // The residual check states its family-wise thresholds (Sidak over the distances compared).
+    const residuals = r.body.checks.find((c: { check: string }) => c.check === 'prediction_residuals');
+    expect(residuals.threshold).toMatchObject({ method: 'sidak', warnAlpha: 0.05, failAlpha: 0.001, distances: residuals.values.rows.length });
     expect(r.body.signals.some((s: { kind: string; rule: string }) => s.kind === 'cusum' && s.rule === 'cusum_upper')).toBe(true);
     const anvilHeats = (await t.request('GET', '/api/v1/heats?mill=ANVIL&grade=8620H')).body.heats;
     const copied = anvilHeats.find((h: { heatNumber: string }) => h.heatNumber === 'A-9005');

@@ -4,7 +4,7 @@ import { afterAll, beforeAll, describe, expect, test } from 'vitest';
 import { createTestDatabase, type TestDatabase } from '../helpers/testDatabase.ts';
 import { addBandVersion } from '../../src/db/referenceData.ts';
 import { capabilityAtBand, capabilityStudy } from '../../src/analysis/capabilityStudy.ts';
-import { controlChart, univariateChart, type UnivariateReference } from '../../src/analysis/controlCharts.ts';
+import { controlChart, t2Chart, univariateChart, type UnivariateReference } from '../../src/analysis/controlCharts.ts';
 import { freezeBaselines } from '../../src/analysis/baselines.ts';
 import { bandTrial } from '../../src/analysis/bandTrial.ts';
 import { fitAndStoreModel } from '../../src/analysis/chemistryModel.ts';
@@ -148,6 +148,60 @@ describe('CUSUM detects a planted shift within the run length theory gives', () 
     const runLength = first - SHIFT_AT + 1;
     expect(runLength).toBeLessThanOrEqual(Math.ceil(2 * siegmundArl(delta, 0.5, 5)));
     expect(chart.signals.find((s) => s.points.includes(first))!.rule).toBe('cusum_upper');
+  });
+});
+
+describe('T² phase I drops heats above the Beta limit before freezing', () => {
+  // Phase I UCL ((m−1)²/m)·Beta(1 − α; p/2, (m − p − 1)/2) (Tracy, Young & Mason 1992) and phase II UCL
+  // p(m+1)(m−1)/(m² − mp)·F(1 − α; p, m − p) (NIST e-Handbook §6.5.4.3.4), from scipy for m = 30 and 27,
+  // p = 3, α = 0.0027 (test/reference/multiplicity.json).
+  const ref = (JSON.parse(readFileSync(new URL('../reference/multiplicity.json', import.meta.url), 'utf8')) as { t2: Array<{ m: number; phaseOneUcl: number; phaseTwoUcl: number }> }).t2;
+  const at = (m: number) => ref.find((r) => r.m === m)!;
+  const distances = [5, 9, 15];
+  const rng = createRng(2718);
+  const PLANTED = [4, 13, 22];
+  const curves: HeatCurve[] = Array.from({ length: 40 }, (_, i) => {
+    // Curves move together (one common factor, like chemistry) plus independent scatter.
+    const a = rng.normal();
+    const v = [40 + 2 * a + 0.5 * rng.normal(), 33 + 2 * a + 0.5 * rng.normal(), 28 + 1.5 * a + 0.5 * rng.normal()];
+    // Gross outliers against the correlation: +4, −4, +4 HRC (many SDs of the scatter across the factor).
+    if (PLANTED.includes(i)) { v[0] += 4; v[1] -= 4; v[2] += 4; }
+    const day = String(1 + (i % 28)).padStart(2, '0');
+    return {
+      heatId: i + 1, heatNumber: `T-${String(i).padStart(2, '0')}`, mill: 'M', castDate: `2023-${i < 30 ? '01' : '03'}-${day}`, grainSize: 7,
+      chemistry: {}, testId: i + 1, source: 'mill_certificate', lotNumber: null, readings: new Map(distances.map((d, j) => [d, v[j]])),
+    } as HeatCurve;
+  });
+  const meta = { grade: 'G', mill: 'M', source: 'mill_certificate' as const, window: { from: null, to: null } };
+
+  test('three planted outliers in a 30-heat baseline are excluded; the frozen F limit is on m − 3 = 27', () => {
+    const chart = t2Chart(curves, distances, {
+      curves: curves.slice(0, 30),
+      origin: { type: 'frozen_baseline', baselineId: 1, window: { from: '2023-01-01', to: '2023-01-31' }, createdBy: 'test', createdAt: '2023-02-01', reason: 'test' },
+      window: { from: '2023-01-01', to: '2023-01-31' },
+    }, meta, { alpha: 0.0027 });
+    expect(chart.limitsFrom).toMatchObject({ type: 'frozen_baseline', excludedHeats: PLANTED.map((i) => `T-${String(i).padStart(2, '0')}`), converged: true });
+    const monitoring = chart.points.filter((pt) => pt.phase === 'monitoring');
+    expect(monitoring).toHaveLength(10);
+    for (const pt of monitoring) expect(pt.ucl).toBeCloseTo(at(27).phaseTwoUcl, 8);
+    expect(Math.abs(at(27).phaseTwoUcl - at(30).phaseTwoUcl)).toBeGreaterThan(0.05); // m matters at this precision
+    const retained = chart.points.filter((pt) => pt.phase === 'baseline' && !PLANTED.includes(pt.index));
+    for (const pt of retained) expect(pt.ucl).toBeCloseTo(at(27).phaseOneUcl, 8);
+    // Phase I identity on the 27 retained heats: mean T² = p(m − 1)/m (tr(S⁻¹(m − 1)S)/m).
+    expect(retained.reduce((a, pt) => a + pt.plotted, 0) / 27).toBeCloseTo((3 * 26) / 27, 9);
+    // The dropped heats are charted against the frozen estimate and F limit, and still signal.
+    for (const i of PLANTED) {
+      expect(chart.points[i].ucl).toBeCloseTo(at(27).phaseTwoUcl, 8);
+      expect(chart.points[i].plotted).toBeGreaterThan(chart.points[i].ucl);
+    }
+  });
+
+  test('phase I on the window excludes them too and says so', () => {
+    const chart = t2Chart(curves, distances, null, meta, { alpha: 0.0027 });
+    expect(chart.limitsFrom).toMatchObject({ type: 'phase_one_on_window', converged: true });
+    expect((chart.limitsFrom as { excludedHeats: string[] }).excludedHeats).toEqual(expect.arrayContaining(PLANTED.map((i) => `T-${String(i).padStart(2, '0')}`)));
+    const signalled = new Set(chart.signals.flatMap((sg) => sg.points));
+    for (const i of PLANTED) expect(signalled.has(i)).toBe(true);
   });
 });
 
