@@ -58,6 +58,7 @@ export const ACCESS_RULES: readonly AccessRule[] = [
   // Webhooks and tokens are administration.
   rule('*', '/api/v1/webhooks', 'admin'),
   rule('*', '/api/v1/webhooks/*', 'admin'),
+  // Reserved for a token API; tokens are managed with `endquench token` today.
   rule('*', '/api/v1/tokens', 'admin'),
   rule('*', '/api/v1/tokens/*', 'admin'),
 ];
