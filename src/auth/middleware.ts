@@ -10,6 +10,10 @@ import { ApiError, errorResponse } from '../api/errors.ts';
 import { ACCESS_RULES, allows, requiredAccess, type AccessRule } from './policy.ts';
 import { AuthorizationHeaderError, bearerToken, hashTokenSecret } from './tokens.ts';
 import { browserAbuseReason, isLocalRequest } from './local.ts';
+import { getCookie } from 'hono/cookie';
+
+/** The cookie a signed-in browser carries its token in (HttpOnly, SameSite=Strict). */
+export const TOKEN_COOKIE = 'endquench_token';
 
 export type AfterWriteHook = (tx: Executor, written: ApplyResult) => Promise<void>;
 
@@ -33,7 +37,8 @@ export function accessControl(options: AccessControlOptions): MiddlewareHandler<
 
     let token: string | null;
     try {
-      token = bearerToken(c.req.header('authorization'));
+      // A browser signs in once (src/web/pages/signIn.tsx) and then carries the token in a cookie.
+      token = bearerToken(c.req.header('authorization')) ?? getCookie(c, TOKEN_COOKIE) ?? null;
     } catch (error) {
       if (error instanceof AuthorizationHeaderError) return unauthorized(c, error.message);
       throw error;
@@ -45,7 +50,13 @@ export function accessControl(options: AccessControlOptions): MiddlewareHandler<
       await touchToken(db, found.id);
       auth = { name: found.name, role: found.role, ...(found.mill ? { millScope: found.mill } : {}) };
     } else {
-      if (await hasActiveTokens(db)) return unauthorized(c, 'This service needs a token: send "Authorization: Bearer <token>".');
+      if (await hasActiveTokens(db)) {
+        // A person opening a page is sent to the sign-in page; a program gets the 401.
+        if (c.req.method === 'GET' && !c.req.path.startsWith('/api/') && (c.req.header('accept') ?? '').includes('text/html')) {
+          return c.redirect(`/sign-in?next=${encodeURIComponent(c.req.path)}`, 303);
+        }
+        return unauthorized(c, 'This service needs a token: send "Authorization: Bearer <token>".');
+      }
       const local = isLocalRequest(c);
       if (local || allowOpen) {
         const abuse = browserAbuseReason(c, { loopbackHostOnly: local && !allowOpen });

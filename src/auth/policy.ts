@@ -33,6 +33,9 @@ const rule = (method: string, path: string, minRole: Access['minRole'], mill = f
 export const ACCESS_RULES: readonly AccessRule[] = [
   rule('GET', '/healthz', 'public'),
   rule('GET', '/openapi.json', 'public'),
+  // Signing in a browser (the token is checked by the page itself).
+  rule('*', '/sign-in', 'public'),
+  rule('POST', '/sign-out', 'public'),
   // Catalog and heats: mills read the catalog and their own heats.
   rule('GET', '/api/v1/mills', 'viewer', true),
   rule('POST', '/api/v1/mills', 'engineer'),

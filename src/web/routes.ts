@@ -13,9 +13,10 @@ import { trendsPage } from './pages/trends.tsx';
 import { capabilityPage } from './pages/capability.tsx';
 import { chemistryPage } from './pages/chemistry.tsx';
 import { bandTrialPage } from './pages/bandTrial.tsx';
+import { signInPages } from './pages/signIn.tsx';
 
 /** Page paths that take form posts; they refuse a post from another origin (hono/csrf checks Origin). */
-export const FORM_PATHS = ['/alerts/*', '/trends/*', '/chemistry/*', '/band-trial/*'];
+export const FORM_PATHS = ['/alerts/*', '/trends/*', '/chemistry/*', '/band-trial/*', '/sign-in', '/sign-out'];
 /** Paths whose answers are compressed when the browser accepts it (pages are mostly repetitive markup). */
 export const PAGE_PATHS = ['/mills', '/heats', '/heats/*', '/grades/*', '/trends', '/capability', '/chemistry', '/band-trial', '/alerts', '/assets/*'];
 
@@ -32,4 +33,5 @@ export function webRoutes(app: Hono<any>, db: Db): void {
   capabilityPage(app, db);
   chemistryPage(app, db);
   bandTrialPage(app, db);
+  signInPages(app, db);
 }

@@ -273,3 +273,39 @@ describe('a mill token cannot slip data past its scope', () => {
     expect(grades.body.map((g: { code: string }) => g.code)).not.toContain('NEW-GRADE-BY-MILL');
   });
 });
+
+describe('signing a browser in', () => {
+  // Runs after tokens exist (earlier describe blocks create them).
+  test('a page without a token sends a person to the sign-in page; the API still answers 401', async () => {
+    const page = await t.app.request('/mills', { headers: { accept: 'text/html' } });
+    expect(page.status).toBe(303);
+    expect(page.headers.get('location')).toBe('/sign-in?next=%2Fmills');
+    expect((await t.app.request('/api/v1/mills', { headers: { accept: 'text/html' } })).status).toBe(401);
+  });
+
+  test('a valid token sets an HttpOnly, SameSite=Strict cookie that then opens pages and the API; a wrong one does not', async () => {
+    const form = (token: string) => new URLSearchParams({ token, next: '/alerts' });
+    const wrong = await t.app.request('/sign-in', { method: 'POST', body: form('eqt_not-a-token'), headers: { origin: 'http://localhost' } });
+    expect(wrong.status).toBe(401);
+    const right = await t.app.request('/sign-in', { method: 'POST', body: form(secrets.viewer), headers: { origin: 'http://localhost' } });
+    expect(right.status).toBe(303);
+    expect(right.headers.get('location')).toBe('/alerts');
+    const cookie = right.headers.get('set-cookie')!;
+    expect(cookie).toMatch(/HttpOnly/);
+    expect(cookie).toMatch(/SameSite=Strict/);
+    const jar = cookie.split(';')[0];
+    expect((await t.app.request('/api/v1/mills', { headers: { cookie: jar } })).status).toBe(200);
+    // The viewer role still applies: it cannot post a band.
+    const band = await t.app.request('/api/v1/grades/8620H/bands', {
+      method: 'POST',
+      headers: { cookie: jar, 'content-type': 'application/json' },
+      body: JSON.stringify({ effectiveFrom: '2021-01-01', distanceSystem: 'mm', points: [{ at: 1.5, min: 30 }] }),
+    });
+    expect(band.status).toBe(403);
+  });
+
+  test('the place to return to must be a path of this site', async () => {
+    const r = await t.app.request('/sign-in', { method: 'POST', body: new URLSearchParams({ token: secrets.viewer, next: '//evil.example/x' }), headers: { origin: 'http://localhost' } });
+    expect(r.headers.get('location')).toBe('/mills');
+  });
+});
