@@ -139,10 +139,12 @@ export async function runImport(db: Db, request: ImportRequest): Promise<ImportR
   let report: ImportReport;
   try {
     report = await db.transaction(async (tx) => {
-      // Imports touching the same heats take turns (advisory locks in key order, so no deadlock):
-      // the second plans against what the first committed, instead of colliding on unique keys.
-      const keys = [...new Set([...validCertificates.map((c) => c.key), ...validTests.map((t) => t.key)])].sort();
-      if (keys.length) await tx.execute(sql`select pg_advisory_xact_lock(hashtext(k)) from unnest(${sql.param(keys)}::text[]) as k order by k`);
+      // Imports of the same mill take turns (one advisory lock per mill, taken in name order so two
+      // imports never wait on each other crosswise): the second plans against what the first
+      // committed instead of colliding on unique keys. Per mill, not per heat: a lock per heat of a
+      // 20,000-heat file would overflow PostgreSQL's lock table.
+      const mills = [...new Set([...validCertificates.map((c) => c.mill), ...validTests.map((t) => t.mill)])].sort();
+      if (mills.length) await tx.execute(sql`select pg_advisory_xact_lock(hashtext('import:' || m)) from (select m from unnest(${sql.param(mills)}::text[]) as m order by m) as ordered`);
       const plan = await planStore(tx, validCertificates, validTests, {
         revise: Boolean(options.revise),
         // A mill-scoped caller may not add mills or grades to the buyer's catalogue.
