@@ -121,22 +121,22 @@ export async function heatReview(db: Db, heatId: number): Promise<HeatReview> {
   );
 
   const signals: HeatSignal[] = [];
-  const history = await loadSeriesCurves(db, { grade: heat.grade, mill: heat.mill, from: addDays(heat.castDate, -730), to: heat.castDate, source: 'both' });
+  // The mill's own series (certificate curves): it is the mill being judged; the plant's re-tests would
+  // mix a lab difference into it.
+  const history = await loadSeriesCurves(db, { grade: heat.grade, mill: heat.mill, from: addDays(heat.castDate, -730), to: heat.castDate, source: 'mill_certificate' });
   const distances = band?.points.map((p) => p.mm) ?? [];
   for (const d of distances) {
     const series = pointsAt(history, d);
     const index = series.findIndex((p) => p.heatId === heat.id);
     if (index < 0) continue;
-    const stored = await activeBaseline(db, { grade: heat.grade, mill: heat.mill, source: 'both', distanceMm: d }).then(
-      async (b) => b ?? (await activeBaseline(db, { grade: heat.grade, mill: heat.mill, source: 'mill_certificate', distanceMm: d })),
-    );
+    const stored = await activeBaseline(db, { grade: heat.grade, mill: heat.mill, source: 'mill_certificate', distanceMm: d });
     let reference;
     try {
       reference = stored ? baselineReference(stored) : phaseOneReference(series, { from: addDays(heat.castDate, -730), to: heat.castDate });
     } catch {
       continue;
     }
-    const meta = { grade: heat.grade, mill: heat.mill, distanceMm: d, label: labelFor(band, d), source: 'both' as const };
+    const meta = { grade: heat.grade, mill: heat.mill, distanceMm: d, label: labelFor(band, d), source: 'mill_certificate' as const };
     for (const kind of ['individuals', 'ewma', 'cusum'] as const) {
       const chart = univariateChart(kind, series, reference, meta);
       for (const s of chart.signals) {

@@ -332,7 +332,7 @@ export function analysisRoutes(app: OpenAPIHono<AppEnv>, db: Db) {
       tags: ['analysis'],
       summary: 'Heat review: conformance, certificate checks, predicted curve, chart signals',
       description:
-        'Band conformance of every test (band in force on the cast date), certificate checks each with its evidence, the predicted curve beside the reported one, and the chart signals this heat raised on its mill’s series.',
+        'Band conformance of every test (band in force on the cast date), certificate checks each with its evidence, the predicted curve beside the reported one, and the chart signals on its mill’s certificate series at this heat (a CUSUM or EWMA signal may have begun at an earlier heat).',
       request: { params: z.object({ id: z.coerce.number().int().positive() }) },
       responses: { 200: json(anyObject, 'The review'), 404: json(errorBodySchema, 'No such heat') },
     }),

@@ -210,7 +210,11 @@ export async function heatSheet(db: Db, heat: HeatDetail, kit: PageKit): Promise
         </ul>
       ) : null}
 
-      <h2>Chart signals this heat raised</h2>
+      <h2>Chart signals on the mill's series at this heat</h2>
+      <p class="note">
+        From the mill's certificate curves over the two years up to this heat. A CUSUM or EWMA signal stays on from where a drift began until the
+        series comes back, so it may have started at an earlier heat: the Trends page shows where.
+      </p>
       {kit.table('signals', `Chart signals of ${heat.heatNumber}`, {
         columns: [
           { key: 'label', label: 'Distance' },
