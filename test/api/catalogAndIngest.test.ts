@@ -6,7 +6,7 @@ let t: TestApp;
 beforeAll(async () => {
   t = await createTestApp();
   await t.request('POST', '/api/v1/mills', { code: 'BRENNWALD', name: 'Brennwald Stahl (invented)', country: 'DE' });
-  // 8620H chemistry limits and band: SAE J1268 / REFERENCES B5 (published 8620H band, metric positions).
+  // 8620H chemistry limits: SAE J1268 / SAE J404 8620H (C .17–.23, Mn .60–.95).
   await t.request('POST', '/api/v1/grades', {
     code: '8620H',
     distanceSystem: 'mm',
