@@ -19,17 +19,8 @@ export interface BaselineInput {
   createdBy: string | null;
 }
 
-export interface BaselineRecord {
+export interface BaselineRecord extends BaselineInput {
   id: number;
-  mill: string;
-  grade: string;
-  distanceMm: number;
-  source: BaselineSource;
-  windowFrom: string;
-  windowTo: string;
-  limits: unknown;
-  reason: string | null;
-  createdBy: string | null;
   createdAt: string;
   retiredAt: string | null;
 }

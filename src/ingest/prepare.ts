@@ -1,7 +1,7 @@
 // Turns validated canonical records into rows ready to store: distances in exact millimetres, canonical
 // JSON and content hashes (what makes a repeated certificate or test recognisable), chemistry by column.
 import { createHash } from 'node:crypto';
-import { distanceLabel, sixteenthsToMm } from '../hardenability/distances.ts';
+import { makeDistance } from '../hardenability/distances.ts';
 import {
   ELEMENTS,
   type CertificateInput,
@@ -81,10 +81,6 @@ export function heatKey(mill: string, heatNumber: string): string {
   return `${mill}/${heatNumber}`;
 }
 
-export function toMillimetres(at: number, system: DistanceSystem): number {
-  return system === 'mm' ? at : sixteenthsToMm(at);
-}
-
 /** JSON with keys sorted at every level and undefined dropped: equal content gives equal text. */
 export function canonicalJson(value: unknown): string {
   return JSON.stringify(sortKeys(value));
@@ -110,7 +106,10 @@ export function sha256(text: string | Uint8Array): string {
 function prepareTest(t: EndQuenchTestInput, salt: string): PreparedTest {
   const readings = [...t.readings]
     .sort((a, b) => a.at - b.at)
-    .map((r) => ({ distanceMm: toMillimetres(r.at, t.distanceSystem), label: distanceLabel(r.at, t.distanceSystem), hrc: r.hrc }));
+    .map((r) => {
+      const at = makeDistance(r.at, t.distanceSystem);
+      return { distanceMm: at.mm, label: at.label, hrc: r.hrc };
+    });
   const prepared = {
     source: t.source,
     basis: t.basis,
