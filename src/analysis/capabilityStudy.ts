@@ -7,7 +7,7 @@
 // MR-bar/d2 in its cast order, variances weighted by their effective degrees of freedom (poolWithin in
 // src/stats/capability.ts). Pp, Ppk use the SD of all heats together, mill differences included.
 import type { Db } from '../db/connection.ts';
-import { capability, individualsWithin, poolWithin, type CapabilityResult, type WithinSigma } from '../stats/capability.ts';
+import { capability, individualsWithin, poolWithin, type CapabilityResult, type IntervalDfChoice, type WithinSigma } from '../stats/capability.ts';
 import type { Band } from '../hardenability/bands.ts';
 import { bandSummary, requireBand, type BandSummary } from './bandOf.ts';
 import { curvesOfMill, loadSeriesCurves, millsOf, pointsAt, todayIso, type HeatCurve, type SeriesPoint, type SeriesQuery, type SeriesSource } from './seriesData.ts';
@@ -49,6 +49,8 @@ export interface CapabilityStudy {
 export interface CapabilityStudyOptions {
   confidence?: number;
   minN?: number;
+  /** Degrees of freedom of the within sigma in the Cp/Cpk intervals (src/stats/capability.ts). */
+  intervalDf?: IntervalDfChoice;
 }
 
 /** σ within pooled over the mills of a series, each mill's MR-bar/d2 in its own order; null if no mill has 2 heats. */
@@ -81,7 +83,7 @@ export function capabilityAtBand(curves: readonly HeatCurve[], band: Band, optio
       return { ...base, result: null, note: `${why}, so there is no within-mill sigma for Cp and Cpk` };
     }
     try {
-      const result = capability({ values }, { lsl: p.minHrc, usl: p.maxHrc }, { confidence: options.confidence, minN: options.minN, within: pooled?.within });
+      const result = capability({ values }, { lsl: p.minHrc, usl: p.maxHrc }, { confidence: options.confidence, minN: options.minN, within: pooled?.within, intervalDf: options.intervalDf });
       return { ...base, withinPooledOver: pooled?.mills ?? null, result, note: result.flags.smallSample ? 'small sample: treat the indices as rough' : null };
     } catch (error) {
       return { ...base, result: null, note: (error as Error).message };

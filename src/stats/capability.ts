@@ -70,6 +70,25 @@ export interface CapabilityOptions {
    * sigma of the series itself; individuals data only.
    */
   within?: WithinSigma;
+  /**
+   * Degrees of freedom of the within sigma in the Cp/Cpk intervals: 'effective' (default; see header)
+   * or 'n-1' (textbook form). Pp/Ppk always use n − 1.
+   */
+  intervalDf?: IntervalDfChoice;
+}
+
+export type IntervalDfChoice = 'effective' | 'n-1';
+
+export const INTERVAL_DF_CHOICES: readonly IntervalDfChoice[] = ['effective', 'n-1'];
+
+/** How the intervals were worked out, in words an answer can carry. */
+export interface IntervalMethod {
+  cp: string;
+  cpk: string;
+  pp: string;
+  ppk: string;
+  withinDf: IntervalDfChoice;
+  withinDfRule: string;
 }
 
 /** A within-process sigma and the effective degrees of freedom of its estimator. */
@@ -163,7 +182,7 @@ export interface CapabilityResult {
    * Intervals, with the degrees of freedom used: df.within (Cp, Cpk; effective, of the within-sigma
    * estimator) and df.overall (Pp, Ppk; n − 1).
    */
-  intervals: { cp: Interval | null; pp: Interval | null; cpk: Interval; ppk: Interval; df: { within: number; overall: number } };
+  intervals: { cp: Interval | null; pp: Interval | null; cpk: Interval; ppk: Interval; df: { within: number; overall: number }; method: IntervalMethod };
   expectedPpm: { within: PpmSplit; overall: PpmSplit };
   observedPpm: PpmSplit;
   normality: AndersonDarlingResult | null;
@@ -220,6 +239,23 @@ function indices(mu: number, sigma: number, lsl: number | null, usl: number | nu
   return { p, u, l, k };
 }
 
+function intervalMethod(withinMethod: CapabilityResult['withinMethod'], choice: IntervalDfChoice, effectiveDf: number, n: number): IntervalMethod {
+  const effectiveRule =
+    withinMethod === 'moving-range'
+      ? `effective df of MR-bar/d2, 0.62(n − 1) = ${effectiveDf.toFixed(2)} (Cryer & Ryan 1990)`
+      : withinMethod === 'subgroup-s-over-c4'
+        ? `effective df of the mean of s/c4, k²/(2Σ(1 − c4²)/c4²) = ${effectiveDf.toFixed(2)}`
+        : `df carried by the given (pooled) within sigma = ${effectiveDf.toFixed(2)}`;
+  return {
+    cp: 'chi-square interval on the df of the within sigma (Montgomery §8.3.5)',
+    cpk: 'Bissell (1990) normal approximation on the df of the within sigma',
+    pp: 'chi-square interval on n − 1 df (Montgomery §8.3.5)',
+    ppk: 'Bissell (1990) normal approximation on n − 1 df',
+    withinDf: choice,
+    withinDfRule: choice === 'effective' ? effectiveRule : `n − 1 = ${n - 1} (textbook form; the ${effectiveRule} was not used)`,
+  };
+}
+
 /** Capability (Cp, Cpk, ...) and performance (Pp, Ppk, ...) of a series against a band; see module header. */
 export function capability(data: CapabilityData, band: SpecBand, options: CapabilityOptions = {}): CapabilityResult {
   const lsl = finiteOrNull(band.lsl, 'LSL');
@@ -233,6 +269,8 @@ export function capability(data: CapabilityData, band: SpecBand, options: Capabi
   const minN = options.minN ?? 25;
   const rules = options.stabilityRules ?? [1];
   const percentileMode = options.percentile ?? 'auto';
+  const intervalDf = options.intervalDf ?? 'effective';
+  if (!INTERVAL_DF_CHOICES.includes(intervalDf)) throw new StatsInputError(`intervalDf must be one of ${INTERVAL_DF_CHOICES.join(', ')}`);
 
   const given = options.within;
   if (given !== undefined && !(Number.isFinite(given.sigma) && given.sigma > 0 && Number.isFinite(given.df) && given.df > 0)) {
@@ -267,6 +305,8 @@ export function capability(data: CapabilityData, band: SpecBand, options: Capabi
     unstablePoints = Array.from(flagged).sort((a, b) => a - b);
   }
   const n = values.length;
+  const effectiveDf = withinDf;
+  if (intervalDf === 'n-1') withinDf = n - 1;
   const sorted = Float64Array.from(values).sort();
   let sum = 0;
   for (const x of values) sum += x;
@@ -331,6 +371,7 @@ export function capability(data: CapabilityData, band: SpecBand, options: Capabi
       cpk: bissellInterval(within.k, n, withinDf, confidence),
       ppk: bissellInterval(overall.k, n, n - 1, confidence),
       df: { within: withinDf, overall: n - 1 },
+      method: intervalMethod(withinMethod, intervalDf, effectiveDf, n),
     },
     expectedPpm: { within: expectedPpm(mu, sigmaWithin, lsl, usl), overall: expectedPpm(mu, sigmaOverall, lsl, usl) },
     observedPpm,

@@ -73,10 +73,22 @@ export function analysisRoutes(app: OpenAPIHono<AppEnv>, db: Db) {
       summary: 'Capability against the band in force, per band distance',
       description:
         'Cp, Cpk, Pp, Ppk, Cpm with 95 % intervals, expected and observed PPM, Anderson–Darling normality, percentile indices when not normal, and flags (small sample, non-normal, unstable). With no mill: all mills together plus a per-mill breakdown. The band is the one in force on `to` (default today).',
-      request: { query: z.object({ grade: z.string().min(1), mill: z.string().optional(), from: isoDate.optional(), to: isoDate.optional(), source }) },
+      request: {
+        query: z.object({
+          grade: z.string().min(1),
+          mill: z.string().optional(),
+          from: isoDate.optional(),
+          to: isoDate.optional(),
+          source,
+          intervalDf: z.enum(['effective', 'n-1']).optional().openapi({ description: 'Degrees of freedom of the within sigma in the Cp/Cpk intervals: effective (default; 0.62(n − 1) for MR-bar/d2) or n-1 (textbook form). Each result names the method used (intervals.method).' }),
+        }),
+      },
       responses: { 200: json(anyObject, 'Capability study'), ...errors },
     }),
-    async (c) => c.json(await answer(() => capabilityStudy(db, c.req.valid('query'))), 200),
+    async (c) => {
+      const { intervalDf, ...query } = c.req.valid('query');
+      return c.json(await answer(() => capabilityStudy(db, query, { intervalDf })), 200);
+    },
   );
 
   app.openapi(

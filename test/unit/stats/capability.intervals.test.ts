@@ -41,6 +41,26 @@ describe('interval degrees of freedom', () => {
   });
 });
 
+describe('interval df switch (intervalDf)', () => {
+  it("'n-1' uses n − 1 for the within sigma too; the result names the choice", () => {
+    const x = normals(createRng(7), 50, 36, 1.2);
+    const eff = capability({ values: x }, { lsl: 32, usl: 40 });
+    const textbook = capability({ values: x }, { lsl: 32, usl: 40 }, { intervalDf: 'n-1' });
+    expect(eff.intervals.method.withinDf).toBe('effective');
+    expect(eff.intervals.method.withinDfRule).toMatch(/0\.62\(n − 1\) = 30\.38/);
+    expect(textbook.intervals.method.withinDf).toBe('n-1');
+    expect(textbook.intervals.df.within).toBe(49);
+    // Same point estimates; Montgomery §8.3.5 chi-square interval on ν = n − 1.
+    expect(textbook.cp).toBe(eff.cp);
+    expect(textbook.intervals.cp!.upper).toBeCloseTo(textbook.cp! * Math.sqrt(chiSquareQuantile(0.975, 49) / 49), 12);
+    // Bissell (1990) on ν = n − 1: narrower than on the effective df.
+    const w = (iv: { lower: number; upper: number }) => iv.upper - iv.lower;
+    expect(w(textbook.intervals.cpk)).toBeLessThan(w(eff.intervals.cpk));
+    expect(textbook.intervals.ppk).toEqual(eff.intervals.ppk);
+    expect(() => capability({ values: x }, { lsl: 32, usl: 40 }, { intervalDf: 'n' as never })).toThrow(StatsInputError);
+  });
+});
+
 // Seeded Monte Carlo: N(0.5, 1) against [−4, 3], so Cp = 7/6 and Cpk = 2.5/3 exactly.
 describe('coverage of the 95 % intervals (seeded Monte Carlo, 3000 replications)', () => {
   const trueCp = 7 / 6;
