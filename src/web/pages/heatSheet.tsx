@@ -15,6 +15,7 @@ import { fmt, mmLabel, query } from '../params.ts';
 import { curvesSpec, type BandRow, type CurveRow, type PredictedRow } from '../specs/curves.ts';
 import { chemistrySpec, type ChemistryPosition } from '../specs/chemistry.ts';
 import { CheckList } from '../components/checks.tsx';
+import { simulatedProbabilityText } from '../probabilityText.ts';
 
 const SOURCE_WORDS: Record<string, string> = { mill_certificate: 'mill certificate', receiving_inspection: 'receiving inspection', outside_lab: 'outside lab' };
 
@@ -173,7 +174,7 @@ export async function heatSheet(db: Db, heat: HeatDetail, kit: PageKit): Promise
             {prediction.answeredBy.type === 'plant_model'
               ? `From the plant's chemistry model of ${prediction.answeredBy.grade}${prediction.answeredBy.mill ? ` for ${prediction.answeredBy.mill}` : ''} (version ${prediction.answeredBy.version}, ${prediction.answeredBy.heatCount} heats).`
               : `From the published predictor (${prediction.answeredBy.methods.join(', ')}): ${prediction.answeredBy.reason}.`}
-            {prediction.wholeBand ? ` Chance that a curve of this chemistry meets every band point: ${fmt(100 * prediction.wholeBand.probability, 1)}% (Monte Carlo, ± ${fmt(100 * prediction.wholeBand.standardError, 2)}%).` : ''}
+            {prediction.wholeBand ? ` Chance that a curve of this chemistry meets every band point: ${simulatedProbabilityText(prediction.wholeBand.probability, prediction.wholeBand.draws)} (Monte Carlo over ${prediction.wholeBand.draws} simulated curves; the bounds are those of the simulation size, Clopper–Pearson). An estimate to support, not replace, the end-quench test.` : ''}
           </p>
           {prediction.notes.length ? (
             <ul>
