@@ -14,10 +14,12 @@ const schema = z.object({
   ENDQUENCH_WEBHOOKS: z.enum(['on', 'off']).default('on'),
   /** Load the invented demo plant when the embedded database is empty (auto), or start empty (off). */
   ENDQUENCH_DEMO: z.enum(['auto', 'off']).default('auto'),
-  ENDQUENCH_WEBHOOK_MAX_ATTEMPTS: z.coerce.number().int().min(1).max(100).default(8),
+  /** Default schedule: 20 attempts, first back-off 60 s, ceiling 4 h = 24.1-48.3 h before a dead letter (src/alerts/backoff.ts). */
+  ENDQUENCH_WEBHOOK_MAX_ATTEMPTS: z.coerce.number().int().min(1).max(100).default(20),
   ENDQUENCH_WEBHOOK_INTERVAL_MS: z.coerce.number().int().min(50).default(2000),
   ENDQUENCH_WEBHOOK_TIMEOUT_MS: z.coerce.number().int().min(100).default(10_000),
-  ENDQUENCH_WEBHOOK_BACKOFF_MS: z.coerce.number().int().min(1).default(5000),
+  ENDQUENCH_WEBHOOK_BACKOFF_MS: z.coerce.number().int().min(1).default(60_000),
+  ENDQUENCH_WEBHOOK_BACKOFF_MAX_MS: z.coerce.number().int().min(1).default(4 * 3_600_000),
 });
 
 export interface Config {
@@ -31,7 +33,7 @@ export interface Config {
   /** See ENDQUENCH_DEMO. */
   demo?: 'auto' | 'off';
   /** Webhook dispatcher settings; absent means the defaults of createDispatcher. */
-  webhooks?: { enabled: boolean; maxAttempts: number; intervalMs: number; timeoutMs: number; baseDelayMs: number };
+  webhooks?: { enabled: boolean; maxAttempts: number; intervalMs: number; timeoutMs: number; baseDelayMs: number; maxDelayMs?: number };
 }
 
 export class ConfigError extends Error {}
@@ -58,6 +60,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
       intervalMs: c.ENDQUENCH_WEBHOOK_INTERVAL_MS,
       timeoutMs: c.ENDQUENCH_WEBHOOK_TIMEOUT_MS,
       baseDelayMs: c.ENDQUENCH_WEBHOOK_BACKOFF_MS,
+      maxDelayMs: Math.max(c.ENDQUENCH_WEBHOOK_BACKOFF_MAX_MS, c.ENDQUENCH_WEBHOOK_BACKOFF_MS),
     },
   };
 }

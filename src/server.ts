@@ -7,6 +7,7 @@ import { createApp } from './api/app.ts';
 import { hasActiveTokens } from './db/tokens.ts';
 import { isLoopbackHost } from './auth/local.ts';
 import { createDispatcher } from './alerts/dispatcher.ts';
+import { DEFAULT_RETRY_SCHEDULE, MIN_RECOMMENDED_SPAN_MS, describeSchedule, retrySpanMs } from './alerts/backoff.ts';
 import { INGEST_RULES } from './alerts/rules/index.ts';
 import { isDatabaseEmpty, loadDemo } from '../seed/load.ts';
 
@@ -20,7 +21,18 @@ export interface RunningService {
 }
 
 export async function startService(config: Config = loadConfig(), logger: Logger = createLogger(config.logLevel)): Promise<RunningService> {
-  const database = await openDatabase({ url: config.databaseUrl, dataDir: config.dataDir });
+  // A connection the server dropped is logged once per burst; requests meanwhile get 503 and the pool
+  // reconnects on the next request (src/db/connection.ts, src/api/errors.ts).
+  let lastDropLog = 0;
+  const database = await openDatabase({
+    url: config.databaseUrl,
+    dataDir: config.dataDir,
+    onConnectionError: (error) => {
+      if (Date.now() - lastDropLog < 5_000) return;
+      lastDropLog = Date.now();
+      logger.warn({ err: { message: error.message, code: (error as { code?: string }).code } }, 'a database connection was lost; requests answer 503 until it is back');
+    },
+  });
   logger.info(
     database.kind === 'pglite' ? { dataDir: config.dataDir } : { database: 'postgres' },
     database.kind === 'pglite' ? 'using the embedded database (set DATABASE_URL to use a PostgreSQL server)' : 'using the PostgreSQL server from DATABASE_URL',
@@ -38,7 +50,18 @@ export async function startService(config: Config = loadConfig(), logger: Logger
   const dispatcher =
     webhooks?.enabled === false
       ? null
-      : createDispatcher({ db: database.db, logger, ...(webhooks ? { maxAttempts: webhooks.maxAttempts, intervalMs: webhooks.intervalMs, timeoutMs: webhooks.timeoutMs, baseDelayMs: webhooks.baseDelayMs } : {}) });
+      : createDispatcher({
+          db: database.db,
+          logger,
+          ...(webhooks ? { maxAttempts: webhooks.maxAttempts, intervalMs: webhooks.intervalMs, timeoutMs: webhooks.timeoutMs, baseDelayMs: webhooks.baseDelayMs, maxDelayMs: webhooks.maxDelayMs } : {}),
+        });
+  if (dispatcher) {
+    const attempts = webhooks?.maxAttempts ?? DEFAULT_RETRY_SCHEDULE.maxAttempts;
+    const backoff = { baseMs: webhooks?.baseDelayMs ?? DEFAULT_RETRY_SCHEDULE.baseMs, maxMs: webhooks?.maxDelayMs ?? DEFAULT_RETRY_SCHEDULE.maxMs };
+    const schedule = describeSchedule(attempts, backoff);
+    if (retrySpanMs(attempts, backoff).minMs < MIN_RECOMMENDED_SPAN_MS) logger.warn({ schedule }, 'webhook retries may end in under 24 h: a receiver down for a night would lose events to dead letters');
+    else logger.info({ schedule }, 'webhook delivery');
+  }
   dispatcher?.start();
   const server: ServerType = await new Promise((resolve) => {
     const s = serve({ fetch: app.fetch, port: config.port, hostname: config.host }, () => resolve(s));

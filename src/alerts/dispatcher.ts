@@ -1,10 +1,16 @@
 // The webhook dispatcher: every interval it claims due outbox rows (short transaction, row locks
 // skipped by other instances), posts each one outside any transaction with its signature and
 // idempotency key, and settles it: delivered on a 2xx answer; otherwise retried after an exponential
-// back-off with jitter (backoff.ts), and dead once maxAttempts attempts have failed.
+// back-off with jitter (backoff.ts), and dead once maxAttempts attempts have failed. The default
+// schedule (DEFAULT_RETRY_SCHEDULE) spends its 20 attempts over 24.1-48.3 h.
+//
+// Ordering: none is promised between the events of one subscription. Rows are claimed oldest due
+// first, but a failed event waits out its back-off while later events go ahead, and delivery is at
+// least once (a lost answer or a crash after the POST sends the event again, same Idempotency-Key).
+// Receivers deduplicate by Idempotency-Key and order by the payload's occurredAt.
 import type { Db } from '../db/connection.ts';
 import type { Logger } from '../logger.ts';
-import { backoffDelayMs } from './backoff.ts';
+import { DEFAULT_RETRY_SCHEDULE, backoffDelayMs } from './backoff.ts';
 import { buryAbandoned, claimDue, markDelivered, markFailed, type ClaimedDelivery } from '../db/outbox.ts';
 import { signedHeaders } from './signature.ts';
 
@@ -19,9 +25,9 @@ export interface DispatcherOptions {
   /** Uniform [0, 1) numbers for the jitter. */
   random?: () => number;
   logger?: Pick<Logger, 'info' | 'warn' | 'error' | 'debug'>;
-  /** Attempts before a delivery is dead (default 8). */
+  /** Attempts before a delivery is dead (default 20). */
   maxAttempts?: number;
-  /** Back-off ceiling after the first failure and its cap (defaults 5 s and 1 h). */
+  /** Back-off ceiling after the first failure and its cap (defaults 60 s and 4 h). */
   baseDelayMs?: number;
   maxDelayMs?: number;
   /** Time a receiver has to answer (default 10 s). */
@@ -62,9 +68,9 @@ export function createDispatcher(options: DispatcherOptions): Dispatcher {
   const clock = options.clock ?? (() => new Date());
   const random = options.random ?? Math.random;
   const log = options.logger;
-  const maxAttempts = options.maxAttempts ?? 8;
-  const baseDelayMs = options.baseDelayMs ?? 5_000;
-  const maxDelayMs = options.maxDelayMs ?? 3_600_000;
+  const maxAttempts = options.maxAttempts ?? DEFAULT_RETRY_SCHEDULE.maxAttempts;
+  const baseDelayMs = options.baseDelayMs ?? DEFAULT_RETRY_SCHEDULE.baseMs;
+  const maxDelayMs = options.maxDelayMs ?? DEFAULT_RETRY_SCHEDULE.maxMs;
   const timeoutMs = options.timeoutMs ?? 10_000;
   const lockMs = options.lockMs ?? timeoutMs * 6;
   const batchSize = options.batchSize ?? 20;

@@ -29,20 +29,31 @@ export interface OpenOptions {
   dataDir?: string | null;
   /** Pool size for a server connection. */
   poolMax?: number;
+  /** How long a request waits for a server connection before it fails (and the API answers 503); default 5 s. */
+  connectTimeoutMs?: number;
+  /** Told about connections the server dropped (pg_terminate_backend, restart, network). */
+  onConnectionError?: (error: Error) => void;
 }
 
 export async function openDatabase(options: OpenOptions): Promise<Database> {
-  if (options.url) return openPostgres(options.url, options.poolMax ?? 10);
+  if (options.url) return openPostgres(options.url, options.poolMax ?? 10, options.connectTimeoutMs ?? 5_000, options.onConnectionError);
   return openPglite(options.dataDir ?? null);
 }
 
-async function openPostgres(url: string, max: number): Promise<Database> {
+async function openPostgres(url: string, max: number, connectTimeoutMs: number, onConnectionError?: (error: Error) => void): Promise<Database> {
   const { default: pg } = await import('pg');
   const { drizzle } = await import('drizzle-orm/node-postgres');
   const { migrate } = await import('drizzle-orm/node-postgres/migrator');
-  const pool = new pg.Pool({ connectionString: url, max });
-  // A dropped idle connection must not crash the process.
-  pool.on('error', () => {});
+  // keepAlive: a connection whose server vanished is noticed by TCP rather than held open.
+  const pool = new pg.Pool({ connectionString: url, max, connectionTimeoutMillis: connectTimeoutMs, keepAlive: true });
+  const report = (error: Error) => onConnectionError?.(error);
+  // A dropped idle connection must not crash the process (the pool removes it).
+  pool.on('error', report);
+  // Nor a dropped connection that is checked out (inside a transaction, between two statements):
+  // node-postgres emits 'error' on that client, and an 'error' event nobody listens to ends the
+  // process. The statement in flight fails (the API answers 503); the broken client is not queryable
+  // any more, so the pool discards it on release and opens a fresh one for the next request.
+  pool.on('connect', (client) => client.on('error', report));
   const db = drizzle(pool, { schema }) as unknown as Db;
   return {
     db,

@@ -49,7 +49,7 @@ export function webhookRoutes(app: OpenAPIHono<AppEnv>, db: Db) {
       tags: ['webhooks'],
       summary: 'Subscribe a URL to events; the signing secret is in this answer only',
       description:
-        'Each delivery is a POST of JSON with headers Idempotency-Key (one per event), X-Endquench-Event, X-Endquench-Timestamp and X-Endquench-Signature: sha256=<hex HMAC-SHA256 of "<timestamp>.<body>" with the secret>. Failed deliveries are retried with exponential back-off and become dead after the configured number of attempts.',
+        'Each delivery is a POST of JSON with headers Idempotency-Key (one per event), X-Endquench-Event, X-Endquench-Timestamp and X-Endquench-Signature: sha256=<hex HMAC-SHA256 of "<timestamp>.<body>" with the secret>. Delivery is at least once and unordered: receivers ignore an Idempotency-Key they have seen, refuse a timestamp older than 5 minutes (replay), and order by the payload\'s occurredAt. Failed deliveries are retried with exponential back-off and equal jitter; by default 20 attempts (first retry after 30-60 s, ceiling 4 h) over 24.1-48.3 h before a delivery is dead.',
       request: {
         body: {
           content: { 'application/json': { schema: z.object({ url: z.string().url(), events: z.array(z.enum(EVENT_NAMES)).min(1) }).openapi('WebhookInput') } },
