@@ -256,6 +256,34 @@ function intervalMethod(withinMethod: CapabilityResult['withinMethod'], choice: 
   };
 }
 
+/**
+ * Interval for the smallest of several Cpk/Ppk-type indices (e.g. the weakest band distance). The
+ * smallest estimate is biased low (the minimum of noisy estimates, most so when several distances are
+ * about equally weak), and its own 95 % interval ignores that it was picked. Here each index gets a
+ * Bissell (1990) interval at the Šidák level (confidence)^(1/k) (Šidák 1967, JASA 62:626–633; it holds
+ * at least at the stated level for positively dependent estimates, which adjacent J-distances are),
+ * so all k intervals hold together at ≥ confidence; then min_j L_j ≤ min_j index_j ≤ min_j U_j.
+ */
+export function minimumIndexInterval(
+  indices: ReadonlyArray<{ estimate: number; n: number; df: number }>,
+  confidence = 0.95,
+): { estimate: number; at: number; lower: number; upper: number; k: number; perIndexConfidence: number; confidence: number } {
+  if (indices.length === 0) throw new StatsInputError('the minimum needs at least one index');
+  if (!(confidence > 0 && confidence < 1)) throw new StatsInputError('confidence must be in (0, 1)');
+  const k = indices.length;
+  const each = Math.pow(confidence, 1 / k);
+  let at = 0;
+  let lower = Infinity;
+  let upper = Infinity;
+  indices.forEach((x, j) => {
+    if (x.estimate < indices[at].estimate) at = j;
+    const iv = bissellInterval(x.estimate, x.n, x.df, each);
+    lower = Math.min(lower, iv.lower);
+    upper = Math.min(upper, iv.upper);
+  });
+  return { estimate: indices[at].estimate, at, lower, upper, k, perIndexConfidence: each, confidence };
+}
+
 /** Capability (Cp, Cpk, ...) and performance (Pp, Ppk, ...) of a series against a band; see module header. */
 export function capability(data: CapabilityData, band: SpecBand, options: CapabilityOptions = {}): CapabilityResult {
   const lsl = finiteOrNull(band.lsl, 'LSL');

@@ -7,6 +7,7 @@ import { listBands, listGrades } from '../../db/referenceData.ts';
 import { listAlerts } from '../../db/alerts.ts';
 import { toBand } from '../../analysis/bandOf.ts';
 import { capabilityAtBand, type DistanceCapability } from '../../analysis/capabilityStudy.ts';
+import { minimumIndexInterval } from '../../stats/capability.ts';
 import { phaseOneReference, univariateChart } from '../../analysis/controlCharts.ts';
 import { asTest, curvesOfMill, groupByHeat, loadSeriesCurves, millsOf, pointsAt, todayIso, type HeatCurve } from '../../analysis/seriesData.ts';
 import { bandInForce, type Band } from '../../hardenability/bands.ts';
@@ -24,7 +25,11 @@ export interface MillGradeRow {
   inBand: number;
   failed: number;
   shareInBand: number | null;
-  lowest: { distanceMm: number; label: string | null; ppk: number; lower: number; upper: number; n: number } | null;
+  /**
+   * The smallest Ppk over the band distances (a minimum of `of` estimates: reads low) and an interval
+   * for the weakest distance's true Ppk, simultaneous over the distances.
+   */
+  lowest: { distanceMm: number; label: string | null; ppk: number; lower: number; upper: number; n: number; of: number; intervalMethod: string } | null;
   openAlerts: number;
   trend: TrendWord;
   /** EWMA at the newest heat as a fraction of the way from centre to limit (signed), for the tooltip. */
@@ -44,16 +49,17 @@ export interface MillsOverview {
   rows: MillGradeRow[];
 }
 
-/** Lowest Ppk over the band distances that have a result. */
+/**
+ * Lowest Ppk over the band distances that have a result, with an interval for the minimum: simultaneous
+ * (Šidák) over the k distances, so it covers the weakest true Ppk at ≥ 95 % (minimumIndexInterval in
+ * src/stats/capability.ts). The point value is the minimum of k estimates and so reads low.
+ */
 export function lowestPpk(distances: readonly DistanceCapability[]): MillGradeRow['lowest'] {
-  let best: MillGradeRow['lowest'] = null;
-  for (const d of distances) {
-    if (!d.result) continue;
-    if (best === null || d.result.ppk < best.ppk) {
-      best = { distanceMm: d.distanceMm, label: d.label, ppk: d.result.ppk, lower: d.result.intervals.ppk.lower, upper: d.result.intervals.ppk.upper, n: d.result.n };
-    }
-  }
-  return best;
+  const withResult = distances.filter((d) => d.result);
+  if (withResult.length === 0) return null;
+  const m = minimumIndexInterval(withResult.map((d) => ({ estimate: d.result!.ppk, n: d.result!.n, df: d.result!.intervals.df.overall })), 0.95);
+  const d = withResult[m.at];
+  return { distanceMm: d.distanceMm, label: d.label, ppk: m.estimate, lower: m.lower, upper: m.upper, n: d.result!.n, of: m.k, intervalMethod: `simultaneous over ${m.k} distance(s) (Šidák, ${(100 * m.perIndexConfidence).toFixed(2)} % each; Bissell 1990)` };
 }
 
 /**

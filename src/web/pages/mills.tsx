@@ -39,8 +39,8 @@ export function millsPage(app: Hono<any>, db: Db) {
         { key: 'heats', label: 'Heats', numeric: true },
         { key: 'sharePct', label: 'In band %', numeric: true, cell: (r: Row) => shareCell(r) },
         { key: 'failed', label: 'Out of band', numeric: true },
-        { key: 'ppk', label: 'Lowest Ppk', numeric: true, digits: 2, cell: (r: Row) => ppkCell(r.ppk) },
-        { key: 'ppkInterval', label: '95% interval', htmlOnly: true, cell: (r: Row) => (r.lowest ? `${fmt(r.ppkLower)} – ${fmt(r.ppkUpper)}` : '–') },
+        { key: 'ppk', label: 'Lowest Ppk (min over distances)', numeric: true, digits: 2, cell: (r: Row) => ppkCell(r.ppk) },
+        { key: 'ppkInterval', label: '95% joint interval', htmlOnly: true, cell: (r: Row) => (r.lowest ? `${fmt(r.ppkLower)} – ${fmt(r.ppkUpper)}` : '–') },
         { key: 'ppkLower', label: 'Ppk 95% low', csvOnly: true },
         { key: 'ppkUpper', label: 'Ppk 95% high', csvOnly: true },
         { key: 'at', label: 'At' },
@@ -95,7 +95,7 @@ export function millsPage(app: Hono<any>, db: Db) {
           {kit.table('overview', 'Mills overview', table)}
           <p class="note">
             In band: heats whose deciding end-quench test conforms to the band in force on the cast date (a receiving re-test overrides the certificate). Lowest Ppk: the smallest Ppk over the band distances of the active band, from the mill's
-            certificate curves. Trend: the newest EWMA value (λ = 0.2) at that distance, steady within half-way to its limit. Reporting: whether the
+            certificate curves; as the minimum of several estimates it reads somewhat low, and its interval is worked out jointly over all the distances (Šidák), so it covers the weakest distance's true Ppk at 95 % or more. Trend: the newest EWMA value (λ = 0.2) at that distance, steady within half-way to its limit. Reporting: whether the
             mill's certificate readings favour even numbers (chi-square on even/odd) or scatter less than measured readings can (against the other
             mills' scatter); hover for the numbers. "Looks edited" is a reason to ask the mill for raw data, not proof.
           </p>

@@ -13,6 +13,7 @@ import { coefficientSpec, comparisonSpec, fittedVsReportedSpec, residualsByDateS
 import { bandsSpec, failingShareSpec } from '../../../src/web/specs/bandTrial.ts';
 import { shortRule } from '../../../src/web/specs/controlChart.ts';
 import { lowestPpk, trendWord } from '../../../src/web/data/millsOverview.ts';
+import { normalQuantile } from '../../../src/stats/distributions.ts';
 import { backTo } from '../../../src/web/pages/alerts.tsx';
 import { readPoints } from '../../../src/web/pages/bandTrial.tsx';
 import { ParamError } from '../../../src/web/params.ts';
@@ -104,14 +105,23 @@ describe('Mills overview helpers', () => {
     expect(trendWord(-0.1, true)).toBe('signal down');
   });
 
-  it('finds the lowest Ppk over the distances that have a result', () => {
-    const result = (ppk: number) => ({ ppk, n: 30, intervals: { ppk: { lower: ppk - 0.1, upper: ppk + 0.1 } } });
+  it('finds the lowest Ppk over the distances that have a result, with an interval simultaneous over them', () => {
+    const result = (ppk: number) => ({ ppk, n: 30, intervals: { ppk: { lower: ppk - 0.1, upper: ppk + 0.1 }, df: { overall: 29 } } });
     const lowest = lowestPpk([
       { distanceMm: 1.5, label: 'J1', lsl: 1, usl: 2, n: 30, result: result(1.4) as never, note: null },
       { distanceMm: 5, label: 'J3', lsl: 1, usl: 2, n: 30, result: result(0.9) as never, note: null },
       { distanceMm: 9, label: 'J6', lsl: 1, usl: 2, n: 1, result: null, note: 'too few' },
     ]);
-    expect(lowest).toMatchObject({ distanceMm: 5, label: 'J3', ppk: 0.9, lower: 0.8, upper: 1 });
+    expect(lowest).toMatchObject({ distanceMm: 5, label: 'J3', ppk: 0.9, of: 2 });
+    // Bissell (1990) half-width z·√(1/(9n) + Ĉ²/(2(n − 1))) at the Šidák level 0.95^(1/2) per distance
+    // (Šidák 1967): z = Φ⁻¹(1 − (1 − √0.95)/2); the minimum's bounds are the smallest lower and upper bounds.
+    const z = normalQuantile(1 - (1 - Math.sqrt(0.95)) / 2);
+    const half = (c: number) => z * Math.sqrt(1 / 270 + (c * c) / 58);
+    expect(lowest!.lower).toBeCloseTo(Math.min(0.9 - half(0.9), 1.4 - half(1.4)), 12);
+    expect(lowest!.upper).toBeCloseTo(Math.min(0.9 + half(0.9), 1.4 + half(1.4)), 12);
+    // Wider than the unadjusted 95 % interval of the one distance picked.
+    expect(lowest!.lower).toBeLessThan(0.9 - normalQuantile(0.975) * Math.sqrt(1 / 270 + 0.81 / 58));
+    expect(lowest!.intervalMethod).toMatch(/simultaneous over 2 distance/);
     expect(lowestPpk([])).toBeNull();
   });
 });
@@ -136,9 +146,10 @@ describe('forms', () => {
     expect(() => readPoints([''], [''], [''], labels)).toThrow(/at least one point/);
   });
 
-  it('labels signal rules briefly on the chart', () => {
-    expect(shortRule('nelson_5')).toBe('N5');
-    expect(shortRule('cusum_lower')).toBe('C−');
-    expect(shortRule('something_new')).toBe('something_new');
+  it('labels signal rules briefly on the chart, in words rather than rule numbers', () => {
+    expect(shortRule('nelson_5')).toBe('2 of 3 past 2σ');
+    expect(shortRule('cusum_lower')).toBe('sum falling');
+    for (let n = 1; n <= 8; n++) expect(shortRule(`nelson_${n}`)).not.toMatch(/\d$|N\d|rule/i);
+    expect(shortRule('something_new')).toBe('something new');
   });
 });
