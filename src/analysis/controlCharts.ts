@@ -22,6 +22,7 @@ import { bandOn, labelFor } from './bandOf.ts';
 import { insufficientData, invalidInput } from './errors.ts';
 import { distancesOf, groupByHeat, loadSeriesCurves, matchDistance, pointsAt, todayIso, type HeatCurve, type SeriesPoint, type SeriesQuery, type SeriesSource } from './seriesData.ts';
 import { seriesAt } from '../db/series.ts';
+import { alertChartParameters, monitoringSettingsFor } from './monitoringSettings.ts';
 
 export type ChartKind = 'individuals' | 'ewma' | 'cusum' | 't2';
 export const CHART_KINDS: readonly ChartKind[] = ['individuals', 'ewma', 'cusum', 't2'];
@@ -38,6 +39,8 @@ export interface ChartParameters {
   headStart?: number;
   /** Nelson rules applied to the individuals chart (default all eight). */
   rules?: NelsonRule[];
+  /** Report a moving range above its upper limit as a signal (default true). */
+  movingRange?: boolean;
   /** T² false-alarm probability per point (default 0.0027). */
   alpha?: number;
 }
@@ -96,6 +99,8 @@ export interface ControlChart {
   ucl: number;
   lcl: number | null;
   parameters: Required<Omit<ChartParameters, 'rules'>> & { rules: NelsonRule[] };
+  /** 'alerts': the parameters the alert rules use for this grade; 'looser': more rules or narrower limits than the alerts. */
+  view?: 'alerts' | 'looser';
   points: ChartPoint[];
   signals: ChartSignal[];
   /** T² only: the distances making up each observation and heats left out for a missing reading. */
@@ -115,6 +120,7 @@ function parametersOf(p: ChartParameters, frozen?: FrozenIndividualsLimits) {
     headStart: p.headStart ?? DEFAULTS.headStart,
     alpha: p.alpha ?? DEFAULTS.alpha,
     rules: [...(p.rules ?? ALL_NELSON_RULES)],
+    movingRange: p.movingRange ?? true,
   };
 }
 
@@ -176,7 +182,7 @@ export function univariateChart(
     const limits = { ...frozen, L: parameters.L, ucl, lcl };
     const phaseTwo = applyIndividualsLimits(limits, values, { rules: parameters.rules });
     const signals = phaseTwo.nelson.hits.filter((h) => h.indices.length).map((h) => signal(`nelson_${h.rule}`, NELSON_RULE_DESCRIPTIONS[h.rule], h.indices, series));
-    const mr = phaseTwo.mrOutOfControl.filter((i) => i > 0);
+    const mr = parameters.movingRange ? phaseTwo.mrOutOfControl.filter((i) => i > 0) : [];
     if (mr.length) signals.push(signal('moving_range', 'moving range above its upper limit', mr, series));
     return { ...common, centre: center, ucl, lcl, points: series.map((p, i) => ({ ...base(p, i), plotted: p.value, ucl, lcl })), signals };
   }
@@ -356,8 +362,33 @@ export interface ChartRequest extends SeriesQuery {
   parameters?: ChartParameters;
 }
 
-/** A chart of one mill's series of a grade (loads the data, picks the limits, computes). */
+/**
+ * Whether explicit parameters make a chart looser than the alerts' (more run rules, narrower limits, a
+ * smaller T² limit, a moving-range signal the alerts never raise). Pure.
+ */
+export function isLooserThan(alerts: ChartParameters, asked: ChartParameters, kind: ChartKind): boolean {
+  const rules = new Set(alerts.rules ?? []);
+  if (kind === 'individuals') return (asked.rules ?? []).some((r) => !rules.has(r)) || (asked.movingRange ?? false) || (asked.L ?? 3) < (alerts.L ?? 3);
+  if (kind === 'ewma') return (asked.L ?? 0) < (alerts.L ?? 0) || asked.lambda !== alerts.lambda;
+  if (kind === 'cusum') return (asked.h ?? 0) < (alerts.h ?? 0) || asked.k !== alerts.k || (asked.headStart ?? 0) > (alerts.headStart ?? 0);
+  return (asked.alpha ?? 0) > (alerts.alpha ?? 0);
+}
+
+/**
+ * A chart of one mill's series of a grade (loads the data, picks the limits, computes). Parameters not
+ * given are those the alert rules use for the grade (src/analysis/monitoringSettings.ts); a chart whose
+ * parameters are looser than the alerts' is marked view 'looser'.
+ */
 export async function controlChart(db: Db, request: ChartRequest): Promise<ControlChart> {
+  const alerts = alertChartParameters(await monitoringSettingsFor(db, request.grade), request.kind);
+  const given = Object.fromEntries(Object.entries(request.parameters ?? {}).filter(([, v]) => v !== undefined)) as ChartParameters;
+  const parameters = { ...alerts, ...given };
+  const view: ControlChart['view'] = isLooserThan(alerts, parameters, request.kind) ? 'looser' : 'alerts';
+  const chart = await computeChart(db, { ...request, parameters });
+  return { ...chart, view };
+}
+
+async function computeChart(db: Db, request: ChartRequest): Promise<ControlChart> {
   const source = request.source ?? 'mill_certificate';
   const curves = await loadSeriesCurves(db, { ...request, source });
   const window = { from: request.from ?? null, to: request.to ?? null };

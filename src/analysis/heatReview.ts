@@ -17,7 +17,8 @@ import { findPossibleCopies } from '../hardenability/checks/copies.ts';
 import type { CheckEvidence, Chemistry, EndQuenchTest, TestSource } from '../hardenability/types.ts';
 import { bandOn, bandSummary, labelFor, type BandSummary } from './bandOf.ts';
 import { baselineReference, phaseOneReference, univariateChart, type ChartKind, type LimitsOrigin } from './controlCharts.ts';
-import { notFound } from './errors.ts';
+import { AnalysisError, notFound } from './errors.ts';
+import { alertChartParameters, monitoringSettingsFor } from './monitoringSettings.ts';
 import { predictCurve, type CurvePrediction } from './prediction.ts';
 import { groupByHeat, loadSeriesCurves, pointsAt } from './seriesData.ts';
 
@@ -122,13 +123,26 @@ export async function heatReview(db: Db, heatId: number): Promise<HeatReview> {
 
   const signals: HeatSignal[] = [];
   // The mill's own series (certificate curves): it is the mill being judged; the plant's re-tests would
-  // mix a lab difference into it.
+  // mix a lab difference into it. The charts and their parameters are those the alert rules run for the
+  // grade (src/analysis/monitoringSettings.ts), so the heat sheet shows no signal the alerts would not raise.
+  const settings = await monitoringSettingsFor(db, heat.grade);
+  const kinds = [
+    ...(settings.nelson.enabled && settings.nelson.rules.length ? (['individuals'] as const) : []),
+    ...(settings.ewma.enabled ? (['ewma'] as const) : []),
+    ...(settings.cusum.enabled ? (['cusum'] as const) : []),
+  ];
   const history = await loadSeriesCurves(db, { grade: heat.grade, mill: heat.mill, from: addDays(heat.castDate, -730), to: heat.castDate, source: 'mill_certificate' });
   const distances = band?.points.map((p) => p.mm) ?? [];
+  let tooShort = false;
   for (const d of distances) {
     const series = pointsAt(history, d);
     const index = series.findIndex((p) => p.heatId === heat.id);
     if (index < 0) continue;
+    // The first heat of a series (or its only one in two years) has nothing to be compared with on a chart.
+    if (series.length < 2) {
+      tooShort = true;
+      continue;
+    }
     const stored = await activeBaseline(db, { grade: heat.grade, mill: heat.mill, source: 'mill_certificate', distanceMm: d });
     let reference;
     try {
@@ -137,13 +151,20 @@ export async function heatReview(db: Db, heatId: number): Promise<HeatReview> {
       continue;
     }
     const meta = { grade: heat.grade, mill: heat.mill, distanceMm: d, label: labelFor(band, d), source: 'mill_certificate' as const };
-    for (const kind of ['individuals', 'ewma', 'cusum'] as const) {
-      const chart = univariateChart(kind, series, reference, meta);
+    for (const kind of kinds) {
+      let chart;
+      try {
+        chart = univariateChart(kind, series, reference, meta, alertChartParameters(settings, kind));
+      } catch (error) {
+        if (error instanceof AnalysisError) continue;
+        throw error;
+      }
       for (const s of chart.signals) {
         if (s.points.includes(index)) signals.push({ kind, distanceMm: d, label: meta.label, rule: s.rule, description: s.description, limitsFrom: reference.origin.type });
       }
     }
   }
+  if (tooShort) notes.push('the first heat of this mill and grade in two years: no chart to compare it with yet');
   if (distances.length === 0) notes.push('no band distances: chart signals not evaluated');
 
   return {

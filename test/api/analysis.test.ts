@@ -76,7 +76,11 @@ describe('capability', () => {
 
 describe('charts and baselines', () => {
   test.each(['individuals', 'ewma', 'cusum'])('%s chart: points, centre, limits, signals; phase I on the window', async (kind) => {
-    const r = await t.request('GET', `/api/v1/charts/${kind}?grade=8620H&mill=CORRAN&distance=9`);
+    // The individuals chart carries by default the run rules the alerts run (none by default): ask for the
+    // rules to see them, which marks the chart as a looser view than the alerts.
+    const rules = kind === 'individuals' ? '&rules=1,2,5,6' : '';
+    const r = await t.request('GET', `/api/v1/charts/${kind}?grade=8620H&mill=CORRAN&distance=9${rules}`);
+    expect(r.body.view).toBe(kind === 'individuals' ? 'looser' : 'alerts');
     expect(r.status).toBe(200);
     expect(r.body.points).toHaveLength(80);
     expect(r.body.points[0]).toMatchObject({ heatNumber: 'C-0001', castDate: '2022-01-03' });
@@ -85,6 +89,19 @@ describe('charts and baselines', () => {
     for (const p of r.body.points) expect(p.ucl).toBeGreaterThan(p.lcl);
     // A 5 HRC step at heat 51 (about 2 SD at 9 mm) is signalled somewhere after it.
     expect(r.body.signals.flatMap((s: { points: number[] }) => s.points).some((i: number) => i >= SHIFT_AT)).toBe(true);
+  });
+
+  test('by default a chart uses the settings of the alert rules: no run rule the alerts do not run, the alerts’ EWMA and CUSUM limits', async () => {
+    const ind = await t.request('GET', '/api/v1/charts/individuals?grade=8620H&mill=CORRAN&distance=9');
+    expect(ind.body).toMatchObject({ view: 'alerts', parameters: { rules: [], movingRange: false } });
+    expect(ind.body.signals).toEqual([]);
+    // The defaults of src/alerts/rules/settings.ts (Lucas & Saccucci 1990 and Brook & Evans 1972 designs named there).
+    const ewma = await t.request('GET', '/api/v1/charts/ewma?grade=8620H&mill=CORRAN&distance=9');
+    expect(ewma.body.parameters).toMatchObject({ lambda: 0.05, L: 3.5 });
+    const cusum = await t.request('GET', '/api/v1/charts/cusum?grade=8620H&mill=CORRAN&distance=9');
+    expect(cusum.body.parameters).toMatchObject({ k: 0.5, h: 8 });
+    const narrower = await t.request('GET', '/api/v1/charts/cusum?grade=8620H&mill=CORRAN&distance=9&h=5');
+    expect(narrower.body.view).toBe('looser');
   });
 
   test('format=vega-lite answers a Vega-Lite v6 spec that renders to SVG', async () => {

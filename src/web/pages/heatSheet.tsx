@@ -5,6 +5,7 @@ import type { HeatDetail } from '../../db/heats.ts';
 import { listAlerts } from '../../db/alerts.ts';
 import type { BandSummary } from '../../analysis/bandOf.ts';
 import { heatReview, type HeatSignal } from '../../analysis/heatReview.ts';
+import { shortRule } from '../specs/controlChart.ts';
 import type { Band } from '../../hardenability/bands.ts';
 import type { ChemistryRow } from '../../hardenability/checks/chemistryLimits.ts';
 import type { CheckEvidence, ChemicalElement, Chemistry } from '../../hardenability/types.ts';
@@ -220,7 +221,7 @@ export async function heatSheet(db: Db, heat: HeatDetail, kit: PageKit): Promise
         columns: [
           { key: 'label', label: 'Distance' },
           { key: 'kind', label: 'Chart', cell: (s: HeatSignal) => <a href={`/trends${query({ grade: heat.grade, mill: heat.mill, distance: s.distanceMm, chart: s.kind })}`}>{s.kind}</a> },
-          { key: 'rule', label: 'Rule' },
+          { key: 'rule', label: 'Signal', cell: (s: HeatSignal) => shortRule(s.rule) },
           { key: 'description', label: 'What it means', wrap: true },
           { key: 'limitsFrom', label: 'Limits from' },
         ],

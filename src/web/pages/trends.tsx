@@ -4,7 +4,7 @@
 import type { Context, Hono } from 'hono';
 import type { Child } from 'hono/jsx';
 import type { Db } from '../../db/connection.ts';
-import { controlChart, type ChartKind, type ControlChart } from '../../analysis/controlCharts.ts';
+import { controlChart, type ChartKind, type ChartParameters, type ControlChart } from '../../analysis/controlCharts.ts';
 import { baselinesOnFile, freezeBaselines } from '../../analysis/baselines.ts';
 import { AnalysisError } from '../../analysis/errors.ts';
 import { Caution } from '../components/caution.tsx';
@@ -15,12 +15,21 @@ import { page, type PageKit } from '../page.tsx';
 import { fmt, mmLabel, optionalDate, optionalNumber, ParamError, query } from '../params.ts';
 import { pageControlChartSpec, shortRule } from '../specs/controlChart.ts';
 
-const KINDS: Array<{ kind: ChartKind; title: string; explain: string }> = [
-  { kind: 'individuals', title: 'Individuals', explain: 'Each heat’s hardness with the centre line and 3-sigma limits (sigma from the average moving range); points labelled N1–N8 break a Nelson rule, MR a moving-range limit.' },
-  { kind: 'ewma', title: 'EWMA', explain: 'Exponentially weighted moving average (λ = 0.2) with its exact time-varying limits: slow drifts show here first.' },
-  { kind: 'cusum', title: 'CUSUM', explain: 'Tabular CUSUM in sigma units (k = 0.5, h = 5): the upper sum climbs when the mean moves up, the lower (drawn below zero) when it moves down.' },
-  { kind: 't2', title: 'Hotelling T²', explain: 'The whole curve at once: T² grows when a curve departs from the usual shape or level, even if no single distance does.' },
+const KINDS: Array<{ kind: ChartKind; title: string; explain: (p: ControlChart['parameters']) => string }> = [
+  {
+    kind: 'individuals',
+    title: 'Individuals',
+    explain: (p) =>
+      `Each heat’s hardness with the centre line and ${p.L}-sigma limits (sigma from the average moving range). ` +
+      (p.rules.length ? 'Points breaking a run rule carry a label in words (hover for the rule).' : 'The alerts run no run rules on this grade, so none are drawn here.'),
+  },
+  { kind: 'ewma', title: 'EWMA', explain: (p) => `Exponentially weighted moving average (λ = ${p.lambda}, limits at ${p.L} sigma) with its exact time-varying limits: slow drifts show here first.` },
+  { kind: 'cusum', title: 'CUSUM', explain: (p) => `Tabular CUSUM in sigma units (k = ${p.k}, h = ${p.h}): the upper sum climbs when the mean moves up, the lower (drawn below zero) when it moves down.` },
+  { kind: 't2', title: 'Hotelling T²', explain: (p) => `The whole curve at once (false-alarm probability ${p.alpha} per heat): T² grows when a curve departs from the usual shape or level, even if no single distance does.` },
 ];
+
+/** The looser view of the page: every run rule and the moving-range signal, more than the alerts raise. */
+const LOOSER: ChartParameters = { rules: [1, 2, 3, 4, 5, 6, 7, 8], movingRange: true };
 
 function originText(chart: ControlChart): string {
   const o = chart.limitsFrom;
@@ -117,17 +126,26 @@ export function trendsPage(app: Hono<any>, db: Db) {
       throw error;
     }
     const done = c.req.query('done');
+    const looser = c.req.query('view') === 'looser';
     const blocks: Child[] = [];
     const charts: ControlChart[] = [];
     for (const k of KINDS) {
       if (k.kind !== 't2' && choice.distanceMm === null) continue;
       try {
-        const chart = await controlChart(db, { kind: k.kind, grade: choice.grade, mill: choice.mill, distanceMm: choice.distanceMm ?? undefined, from: choice.from, to: choice.to });
+        const chart = await controlChart(db, {
+          kind: k.kind,
+          grade: choice.grade,
+          mill: choice.mill,
+          distanceMm: choice.distanceMm ?? undefined,
+          from: choice.from,
+          to: choice.to,
+          parameters: looser && k.kind === 'individuals' ? LOOSER : undefined,
+        });
         charts.push(chart);
         blocks.push(
           <>
             <h2>{k.title}</h2>
-            {chartBlock(kit, chart, k.title, k.explain)}
+            {chartBlock(kit, chart, k.title, k.explain(chart.parameters))}
           </>,
         );
       } catch (error) {
@@ -158,6 +176,19 @@ export function trendsPage(app: Hono<any>, db: Db) {
               {done}
             </p>
           ) : null}
+          <p class="note" id="chart-view">
+            {looser ? (
+              <>
+                <strong>Looser view:</strong> the individuals chart shows every run rule and the moving-range signal, more than the alert rules raise (expect signals on a process in control).{' '}
+                <a href={`/trends${query({ grade: choice.grade, mill: choice.mill, distance: choice.distanceMm ?? undefined, from: choice.from, to: choice.to })}`}>Back to the alerts’ view</a>.
+              </>
+            ) : (
+              <>
+                The charts use the settings the alert rules run with for this grade, so a signal here is one the alerts raise.{' '}
+                <a href={`/trends${query({ grade: choice.grade, mill: choice.mill, distance: choice.distanceMm ?? undefined, from: choice.from, to: choice.to, view: 'looser' })}`}>Looser view (every run rule)</a>.
+              </>
+            )}
+          </p>
           <Caution>A signal says the process changed, not that a heat is bad: talk with the mill and look at the heat sheet. Acceptance follows the purchase specification and qualified personnel.</Caution>
           {blocks}
           <h2>Signals</h2>
@@ -165,7 +196,6 @@ export function trendsPage(app: Hono<any>, db: Db) {
             columns: [
               { key: 'chart', label: 'Chart' },
               { key: 'short', label: 'Label' },
-              { key: 'rule', label: 'Rule' },
               { key: 'description', label: 'Meaning', wrap: true },
               { key: 'count', label: 'Points', numeric: true },
               { key: 'heats', label: 'Heats', wrap: true },

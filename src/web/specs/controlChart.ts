@@ -5,11 +5,28 @@ import type { ControlChart } from '../../analysis/controlCharts.ts';
 import type { VegaLiteSpec } from './theme.ts';
 
 /** Short name of a signal rule for a label on the chart. */
+/** Words (our own) for the signal of a chart rule, used as point labels; no rule numbers. */
+export const RULE_WORDS: Readonly<Record<string, string>> = Object.freeze({
+  nelson_1: 'past 3σ',
+  nelson_2: 'nine on one side',
+  nelson_3: 'six-heat trend',
+  nelson_4: 'see-saw',
+  nelson_5: '2 of 3 past 2σ',
+  nelson_6: '4 of 5 past 1σ',
+  nelson_7: 'hugging the centre',
+  nelson_8: 'avoiding the centre',
+  moving_range: 'jump between heats',
+  ewma_beyond_limit: 'average moved',
+  cusum_upper: 'sum climbing',
+  cusum_lower: 'sum falling',
+  t2_beyond_ucl: 'unusual curve',
+  curve_level_high: 'curve level up',
+  curve_level_low: 'curve level down',
+  curve_shape: 'curve shape changed',
+});
+
 export function shortRule(rule: string): string {
-  const nelson = /^nelson_(\d)$/.exec(rule);
-  if (nelson) return `N${nelson[1]}`;
-  const names: Record<string, string> = { moving_range: 'MR', ewma_beyond_limit: 'EWMA', cusum_upper: 'C+', cusum_lower: 'C−', t2_beyond_ucl: 'T²' };
-  return names[rule] ?? rule;
+  return RULE_WORDS[rule] ?? rule.replace(/_/g, ' ');
 }
 
 export function pageControlChartSpec(chart: ControlChart, height = 240): VegaLiteSpec {
