@@ -1,13 +1,17 @@
-// Capability of a grade's series against the band in force, per band distance; overall and per mill.
-// The indices, intervals, PPM, normality and flags come from src/stats/capability.ts (ISO 22514-2;
-// Bissell 1990; D'Agostino & Stephens 1986); this module only chooses the data and the limits.
-// The band is the version in force on the window's end (`to`, else today), reported as band and bandInForceOn.
-// Several mills together: moving ranges between heats of different mills would measure the gap between
-// the mills, not the within-process spread, so σ within (Cp, Cpk) is pooled from each mill's own
-// MR-bar/d2 in its cast order, variances weighted by their effective degrees of freedom (poolWithin in
-// src/stats/capability.ts). Pp, Ppk use the SD of all heats together, mill differences included.
+// Capability of a grade's series against the band in force, per band distance; for one mill, or for the
+// supply from several mills. The indices, intervals, PPM, normality and flags come from
+// src/stats/capability.ts (ISO 22514-2; Bissell 1990; D'Agostino & Stephens 1986); this module only
+// chooses the data and the limits. The band is the version in force on the window's end (`to`, else
+// today), reported as band and bandInForceOn.
+// Several mills: no Cp/Cpk/Pp/Ppk is worked out over the mixture. An index needs one process (rational
+// subgrouping, Montgomery, Introduction to SQC §6.2.4; AIAG SPC manual): over two mills with different
+// means a pooled index can read better than either mill, and its normal-model PPM misstates the
+// mixture's tails. Instead each distance carries `supply`: every mill's own indices side by side
+// (each on its own heats in cast order) and the supply-level share outside the band, the heat-weighted
+// sum of the mills' shares with a generalized interval (src/stats/supplyNonconforming.ts).
 import type { Db } from '../db/connection.ts';
-import { capability, individualsWithin, poolWithin, type CapabilityResult, type IntervalDfChoice, type WithinSigma } from '../stats/capability.ts';
+import { capability, type CapabilityResult, type Interval, type IntervalDfChoice } from '../stats/capability.ts';
+import { supplyNonconforming } from '../stats/supplyNonconforming.ts';
 import type { Band } from '../hardenability/bands.ts';
 import { bandSummary, requireBand, type BandSummary } from './bandOf.ts';
 import { curvesOfMill, loadSeriesCurves, millsOf, pointsAt, todayIso, type HeatCurve, type SeriesPoint, type SeriesQuery, type SeriesSource } from './seriesData.ts';
@@ -18,11 +22,41 @@ export interface DistanceCapability {
   lsl: number | null;
   usl: number | null;
   n: number;
-  /** Null when the series is too short or has no spread; see note. */
+  /** Null when the series is too short or has no spread, or mixes several mills (see supply); see note. */
   result: CapabilityResult | null;
-  /** Mills whose own within sigmas were pooled for Cp/Cpk (several mills together), else null. */
-  withinPooledOver?: string[] | null;
+  /** Several mills: each mill's indices side by side and the supply-level share outside the band. */
+  supply?: SupplyAtDistance | null;
   note: string | null;
+}
+
+/** One mill's figures at a distance, side by side with the others. */
+export interface SupplyMill {
+  mill: string;
+  n: number;
+  /** The mill's share of the heats tested at this distance (its weight in the supply figure). */
+  weight: number;
+  cpk: number;
+  cpkInterval: Interval;
+  ppk: number;
+  ppkInterval: Interval;
+  /** Expected PPM outside the band, normal model on the mill's own mean and overall SD, with its interval. */
+  expectedPpm: number;
+  expectedPpmInterval: Interval;
+  observedPpm: number;
+  flags: CapabilityResult['flags'];
+}
+
+export interface SupplyAtDistance {
+  mills: SupplyMill[];
+  /** Heat-weighted sum of the mills' expected PPM, with its interval (generalized pivotal quantities). */
+  expectedPpm: number;
+  expectedPpmInterval: Interval;
+  /** Share of all heats outside the band, PPM. */
+  observedPpm: number;
+  confidence: number;
+  method: string;
+  /** Mills left out at this distance (fewer than 2 heats, or no spread). */
+  leftOut: string[];
 }
 
 export interface MillCapability {
@@ -53,38 +87,85 @@ export interface CapabilityStudyOptions {
   intervalDf?: IntervalDfChoice;
 }
 
-/** σ within pooled over the mills of a series, each mill's MR-bar/d2 in its own order; null if no mill has 2 heats. */
-export function pooledWithinOfMills(points: readonly SeriesPoint[]): { within: WithinSigma; mills: string[] } | null {
+/** Values at a distance per mill, each mill's in its own (cast) order. */
+function valuesByMill(points: readonly SeriesPoint[]): Map<string, number[]> {
   const byMill = new Map<string, number[]>();
   for (const p of points) {
     const own = byMill.get(p.mill);
     if (own) own.push(p.value);
     else byMill.set(p.mill, [p.value]);
   }
-  const mills = [...byMill.keys()].filter((m) => byMill.get(m)!.length >= 2).sort();
-  if (mills.length === 0) return null;
-  return { within: poolWithin(mills.map((m) => individualsWithin(byMill.get(m)!))), mills };
+  return byMill;
+}
+
+/** The mills side by side at one distance and the supply share outside the band (pure). */
+export function supplyAt(points: readonly SeriesPoint[], limits: { lsl: number | null; usl: number | null }, options: CapabilityStudyOptions = {}): SupplyAtDistance | null {
+  const byMill = valuesByMill(points);
+  const mills: SupplyMill[] = [];
+  const leftOut: string[] = [];
+  const parts: Array<{ name: string; n: number; mean: number; sd: number }> = [];
+  for (const mill of [...byMill.keys()].sort()) {
+    const values = byMill.get(mill)!;
+    let r: CapabilityResult;
+    try {
+      r = capability({ values }, limits, { confidence: options.confidence, minN: options.minN, intervalDf: options.intervalDf });
+    } catch {
+      leftOut.push(mill);
+      continue;
+    }
+    parts.push({ name: mill, n: r.n, mean: r.mean, sd: r.sigmaOverall });
+    mills.push({
+      mill,
+      n: r.n,
+      weight: 0,
+      cpk: r.cpk,
+      cpkInterval: r.intervals.cpk,
+      ppk: r.ppk,
+      ppkInterval: r.intervals.ppk,
+      expectedPpm: r.expectedPpm.overall.total,
+      expectedPpmInterval: { lower: 0, upper: 0 },
+      observedPpm: r.observedPpm.total,
+      flags: r.flags,
+    });
+  }
+  if (parts.length === 0) return null;
+  const share = supplyNonconforming(parts, limits, { confidence: options.confidence });
+  share.parts.forEach((p, i) => {
+    mills[i].weight = p.weight;
+    mills[i].expectedPpmInterval = { lower: 1e6 * p.lower, upper: 1e6 * p.upper };
+  });
+  const outside = points.filter((p) => (limits.lsl !== null && p.value < limits.lsl) || (limits.usl !== null && p.value > limits.usl)).length;
+  return {
+    mills,
+    expectedPpm: 1e6 * share.fraction,
+    expectedPpmInterval: { lower: 1e6 * share.lower, upper: 1e6 * share.upper },
+    observedPpm: (1e6 * outside) / points.length,
+    confidence: share.confidence,
+    method: leftOut.length ? `${share.method}; over the mills with at least 2 heats and some spread` : share.method,
+    leftOut,
+  };
 }
 
 /**
- * Capability at every point of a band, from already loaded curves (pure). Curves of several mills:
- * σ within pooled over the mills (see header).
+ * Capability at every point of a band, from already loaded curves (pure). Curves of several mills: no
+ * index over the mixture, the mills side by side and the supply share instead (see header).
  */
 export function capabilityAtBand(curves: readonly HeatCurve[], band: Band, options: CapabilityStudyOptions = {}): DistanceCapability[] {
-  const severalMills = millsOf(curves).length > 1;
+  const millCount = millsOf(curves).length;
   return band.points.map((p) => {
     const points = pointsAt(curves, p.mm);
     const values = points.map((s) => s.value);
-    const base = { distanceMm: p.mm, label: p.label ?? null, lsl: p.minHrc ?? null, usl: p.maxHrc ?? null, n: values.length, withinPooledOver: null };
+    const limits = { lsl: p.minHrc ?? null, usl: p.maxHrc ?? null };
+    const base = { distanceMm: p.mm, label: p.label ?? null, ...limits, n: values.length, supply: null };
     if (values.length < 2) return { ...base, result: null, note: `${values.length} heat(s) tested at this distance: too few for a capability study` };
-    const pooled = severalMills ? pooledWithinOfMills(points) : null;
-    if (severalMills && (pooled === null || !(pooled.within.sigma > 0))) {
-      const why = pooled === null ? 'no mill has two heats at this distance' : 'no mill shows any spread at this distance';
-      return { ...base, result: null, note: `${why}, so there is no within-mill sigma for Cp and Cpk` };
+    if (millCount > 1) {
+      const supply = supplyAt(points, limits, options);
+      const why = `${millCount} mills: one index over a mixture of mills would mislead, so each mill's indices stand side by side with the supply share outside the band`;
+      return { ...base, supply, result: null, note: supply ? why : `${why}; no mill has two heats with some spread here` };
     }
     try {
-      const result = capability({ values }, { lsl: p.minHrc, usl: p.maxHrc }, { confidence: options.confidence, minN: options.minN, within: pooled?.within, intervalDf: options.intervalDf });
-      return { ...base, withinPooledOver: pooled?.mills ?? null, result, note: result.flags.smallSample ? 'small sample: treat the indices as rough' : null };
+      const result = capability({ values }, limits, { confidence: options.confidence, minN: options.minN, intervalDf: options.intervalDf });
+      return { ...base, result, note: result.flags.smallSample ? 'small sample: treat the indices as rough' : null };
     } catch (error) {
       return { ...base, result: null, note: (error as Error).message };
     }

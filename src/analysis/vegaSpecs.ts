@@ -98,19 +98,24 @@ export function controlChartSpec(chart: ControlChart, options: { width?: number;
 
 /** Ppk per band distance (with its 95 % interval) against the common 1.33 reference line. */
 export function capabilitySpec(study: CapabilityStudy, options: { width?: number; height?: number } = {}): VegaLiteSpec {
-  const values = study.distances
-    .filter((d) => d.result)
-    .map((d) => ({ distance: d.label ?? `${d.distanceMm} mm`, order: d.distanceMm, ppk: round(d.result!.ppk, 3), lower: round(d.result!.intervals.ppk.lower, 3), upper: round(d.result!.intervals.ppk.upper, 3), n: d.n }));
+  // Several mills: no Ppk over the mixture; each mill's own Ppk per distance, told apart by colour and shape.
+  const byMill = study.distances.some((d) => d.supply);
+  const values = byMill
+    ? study.distances.flatMap((d) => (d.supply?.mills ?? []).map((m) => ({ distance: d.label ?? `${d.distanceMm} mm`, order: d.distanceMm, mill: m.mill, ppk: round(m.ppk, 3), lower: round(m.ppkInterval.lower, 3), upper: round(m.ppkInterval.upper, 3), n: m.n })))
+    : study.distances
+        .filter((d) => d.result)
+        .map((d) => ({ distance: d.label ?? `${d.distanceMm} mm`, order: d.distanceMm, ppk: round(d.result!.ppk, 3), lower: round(d.result!.intervals.ppk.lower, 3), upper: round(d.result!.intervals.ppk.upper, 3), n: d.n }));
   const x = { field: 'distance', type: 'ordinal', sort: { field: 'order' }, title: 'Distance from quenched end' };
+  const perMill = byMill ? { color: { field: 'mill', type: 'nominal', title: 'Mill' }, shape: { field: 'mill', type: 'nominal' }, xOffset: { field: 'mill' } } : {};
   return {
     $schema: SCHEMA,
-    title: { text: `Ppk by distance: ${study.mill ?? 'all mills'} ${study.grade}`, subtitle: 'Bars: 95 % interval (Bissell 1990); line: Ppk 1.33' },
+    title: { text: `Ppk by distance: ${study.mill ?? 'all mills'} ${study.grade}`, subtitle: byMill ? 'Each mill on its own (no index over the mixture); bars: 95 % interval (Bissell 1990); line: Ppk 1.33' : 'Bars: 95 % interval (Bissell 1990); line: Ppk 1.33' },
     width: options.width ?? 480,
     height: options.height ?? 220,
     data: { values },
     layer: [
-      { mark: { type: 'rule', color: ANALYSIS_PALETTE.data }, encoding: { x, y: { field: 'lower', type: 'quantitative', title: 'Ppk' }, y2: { field: 'upper' } } },
-      { mark: { type: 'point', filled: true, color: ANALYSIS_PALETTE.data, size: 60 }, encoding: { x, y: { field: 'ppk', type: 'quantitative' }, tooltip: [{ field: 'distance' }, { field: 'ppk' }, { field: 'lower' }, { field: 'upper' }, { field: 'n' }] } },
+      { mark: { type: 'rule', color: ANALYSIS_PALETTE.data }, encoding: { x, y: { field: 'lower', type: 'quantitative', title: 'Ppk' }, y2: { field: 'upper' }, ...perMill } },
+      { mark: { type: 'point', filled: true, color: ANALYSIS_PALETTE.data, size: 60 }, encoding: { x, y: { field: 'ppk', type: 'quantitative' }, tooltip: [...(byMill ? [{ field: 'mill' }] : []), { field: 'distance' }, { field: 'ppk' }, { field: 'lower' }, { field: 'upper' }, { field: 'n' }], ...perMill } },
       { data: { values: [{ ref: 1.33 }] }, mark: { type: 'rule', color: ANALYSIS_PALETTE.limit, strokeDash: [6, 3] }, encoding: { y: { field: 'ref', type: 'quantitative' } } },
     ],
     config,

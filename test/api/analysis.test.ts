@@ -67,6 +67,15 @@ describe('capability', () => {
     expect(one.body.distances[0].result.intervals.ppk.lower).toBeLessThan(one.body.distances[0].result.ppk);
     const all = await t.request('GET', '/api/v1/capability?grade=8620H');
     expect(all.body.perMill.map((m: { mill: string }) => m.mill)).toEqual(['ANVIL', 'CORRAN']);
+    // Two mills: no index over the mixture; the mills side by side and the heat-weighted supply PPM.
+    expect(all.body.distances[0].result).toBeNull();
+    expect(all.body.distances[0].supply.mills.map((m: { mill: string }) => m.mill)).toEqual(['ANVIL', 'CORRAN']);
+    expect(all.body.distances[0].supply.method).toMatch(/heat-weighted/);
+    // The interval method is stated and switchable.
+    expect(one.body.distances[0].result.intervals.method.withinDf).toBe('effective');
+    const textbook = await t.request('GET', '/api/v1/capability?grade=8620H&mill=ANVIL&to=2021-12-31&intervalDf=n-1');
+    expect(textbook.body.distances[0].result.intervals.df.within).toBe(100);
+    expect((await t.request('GET', '/api/v1/capability?grade=8620H&intervalDf=n')).status).toBe(400);
     const none = await t.request('GET', '/api/v1/capability?grade=8622H');
     expect(none.status).toBe(422);
     expect(none.body.error.code).toBe('no_band');

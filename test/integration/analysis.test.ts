@@ -59,16 +59,24 @@ describe('capability', () => {
     const all = await capabilityStudy(db.db, { grade: '8620H' });
     expect(all.perMill!.map((p) => [p.mill, p.heats])).toEqual([['ANVIL', 150], ['BRAMLEY', 110], ['CORRAN', 90]]);
     expect(all.distances[0].n).toBe(350);
-    // All mills together: σ within pooled from each mill's own MR-bar/d2, variances weighted by their
-    // effective df 0.62(nⱼ − 1) (pooled variance, common practice; Cryer & Ryan 1990 for the df, from memory).
-    const pooledAt5 = all.distances[2];
-    expect(pooledAt5.withinPooledOver).toEqual(['ANVIL', 'BRAMLEY', 'CORRAN']);
-    expect(pooledAt5.result!.withinMethod).toBe('given');
+    // All mills together: no index over the mixture (rational subgrouping, Montgomery §6.2.4; AIAG SPC
+    // manual); each mill's own indices side by side and the heat-weighted supply share.
+    const at5all = all.distances[2];
+    expect(at5all.result).toBeNull();
+    expect(at5all.note).toMatch(/3 mills: one index over a mixture/);
+    const supply = at5all.supply!;
+    expect(supply.mills.map((m) => [m.mill, m.n])).toEqual([['ANVIL', 150], ['BRAMLEY', 110], ['CORRAN', 90]]);
     const own = all.perMill!.map((p) => p.distances[2].result!);
-    const df = own.reduce((a, r) => a + r.intervals.df.within, 0);
-    expect(pooledAt5.result!.intervals.df.within).toBeCloseTo(df, 10);
-    expect(pooledAt5.result!.sigmaWithin).toBeCloseTo(Math.sqrt(own.reduce((a, r) => a + r.intervals.df.within * r.sigmaWithin ** 2, 0) / df), 10);
-    expect(one.distances[2].withinPooledOver).toBeNull();
+    supply.mills.forEach((m, i) => {
+      expect(m.ppk).toBeCloseTo(own[i].ppk, 12);
+      expect(m.cpk).toBeCloseTo(own[i].cpk, 12);
+      expect(m.weight).toBeCloseTo(own[i].n / 350, 12);
+    });
+    // Supply PPM = Σ w_m · PPM_m (the mixture's share outside; heat weights).
+    expect(supply.expectedPpm).toBeCloseTo(own.reduce((a, r) => a + (r.n / 350) * r.expectedPpm.overall.total, 0), 6);
+    expect(supply.expectedPpmInterval.lower).toBeLessThanOrEqual(supply.expectedPpm);
+    expect(supply.expectedPpmInterval.upper).toBeGreaterThanOrEqual(supply.expectedPpm);
+    expect(one.distances[2].supply).toBeNull();
     // The band applied is the one in force on the window's end (today when no end is given).
     const dated = await capabilityStudy(db.db, { grade: '8620H', mill: 'ANVIL', to: '2021-12-31' });
     expect(dated.bandInForceOn).toBe('2021-12-31');
@@ -76,7 +84,7 @@ describe('capability', () => {
     expect(all.bandInForceOn).toMatch(/^\d{4}-\d{2}-\d{2}$/);
   });
 
-  test('two interleaved mills 2 HRC apart, each SD 1: pooled σ within ≈ 1, not ≈ 1.9 across the mills', () => {
+  test('two mills, one near each band limit: each mill keeps its own Cpk; the supply share is their heat-weighted sum', () => {
     const rng = createRng(31);
     const curve = (i: number, mill: string, hrc: number): HeatCurve => ({
       heatId: i + 1,
@@ -90,17 +98,25 @@ describe('capability', () => {
       lotNumber: null,
       readings: new Map([[5, hrc]]),
     });
-    const curves = Array.from({ length: 300 }, (_, i) => (i % 2 === 0 ? curve(i, 'EAST', 36 + rng.normal()) : curve(i, 'WEST', 38 + rng.normal())));
+    // EAST N(34.1, 1): Cpk (34.1 − 31)/3 ≈ 1.03; WEST N(41, 1): Cpk (43 − 41)/3 ≈ 0.67 (ISO 22514-2 formulas).
+    const curves = Array.from({ length: 400 }, (_, i) => (i % 2 === 0 ? curve(i, 'EAST', 34.1 + rng.normal()) : curve(i, 'WEST', 41 + rng.normal())));
     const band = { grade: 'TEST', version: 3, effectiveFrom: '2020-01-01', status: 'active' as const, kind: 'standard' as const, points: [{ mm: 5, minHrc: 31, maxHrc: 43 }] };
     const [d] = capabilityAtBand(curves, band);
-    expect(d.withinPooledOver).toEqual(['EAST', 'WEST']);
-    expect(Math.abs(d.result!.sigmaWithin - 1)).toBeLessThan(0.12);
-    // Mixture of two unit-SD mills ±1 about the centre: overall SD ≈ √2, so Cpk > Ppk as it should be.
-    expect(d.result!.cpk).toBeGreaterThan(d.result!.ppk);
-    // The same heats as one mill (moving ranges across the mills): the inflated ≈ 1.9 of the defect.
+    expect(d.result).toBeNull();
+    const [east, west] = d.supply!.mills;
+    // Within 4 standard errors (Bissell 1990: SE = half-width of the 95 % interval / 1.96).
+    const near = (est: number, iv: { lower: number; upper: number }, truth: number) => Math.abs(est - truth) < (4 * (iv.upper - iv.lower)) / (2 * 1.96);
+    expect(near(east.cpk, east.cpkInterval, 3.1 / 3) && near(east.ppk, east.ppkInterval, 3.1 / 3)).toBe(true);
+    expect(near(west.cpk, west.cpkInterval, 2 / 3) && near(west.ppk, west.ppkInterval, 2 / 3)).toBe(true);
+    // True share outside of the 50/50 mixture: ½Φ(−3.1) + ½Φ(−2) (plus negligible far tails) ≈ 12,340 PPM
+    // (standard normal table values Φ(−3.1) = 0.000968, Φ(−2) = 0.02275).
+    const truth = 1e6 * (0.5 * 0.000968 + 0.5 * 0.02275);
+    expect(d.supply!.expectedPpmInterval.lower).toBeLessThan(truth);
+    expect(d.supply!.expectedPpmInterval.upper).toBeGreaterThan(truth);
+    // The same heats as one mill: an index over the mixture, which the supply view avoids.
     const [naive] = capabilityAtBand(curves.map((c) => ({ ...c, mill: 'ONE' })), band);
-    expect(naive.result!.sigmaWithin).toBeGreaterThan(1.7);
-    expect(naive.withinPooledOver).toBeNull();
+    expect(naive.result).not.toBeNull();
+    expect(naive.supply).toBeNull();
   });
 });
 

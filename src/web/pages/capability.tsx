@@ -69,6 +69,58 @@ function indexRow(d: DistanceCapability, mill: string | null) {
 
 type IndexRow = ReturnType<typeof indexRow>;
 
+/** Several mills at each distance: the mills side by side, then the supply (heat-weighted) row. */
+function supplyRows(distances: readonly DistanceCapability[]) {
+  return distances.flatMap((d) => {
+    if (!d.supply) return [];
+    const distance = d.label ?? mmLabel(d.distanceMm);
+    const mills = d.supply.mills.map((m) => ({
+      distance,
+      mill: m.mill,
+      n: m.n,
+      weightPct: 100 * m.weight,
+      cpk: m.cpk as number | null,
+      cpkLower: m.cpkInterval.lower as number | null,
+      cpkUpper: m.cpkInterval.upper as number | null,
+      ppk: m.ppk as number | null,
+      ppkLower: m.ppkInterval.lower as number | null,
+      ppkUpper: m.ppkInterval.upper as number | null,
+      expectedPpm: m.expectedPpm,
+      ppmLower: m.expectedPpmInterval.lower,
+      ppmUpper: m.expectedPpmInterval.upper,
+      observedPpm: m.observedPpm,
+    }));
+    const total = mills.reduce((a, m) => a + m.n, 0);
+    return [
+      ...mills,
+      { distance, mill: 'supply (heat-weighted)', n: total, weightPct: 100, cpk: null, cpkLower: null, cpkUpper: null, ppk: null, ppkLower: null, ppkUpper: null, expectedPpm: d.supply.expectedPpm, ppmLower: d.supply.expectedPpmInterval.lower, ppmUpper: d.supply.expectedPpmInterval.upper, observedPpm: d.supply.observedPpm },
+    ];
+  });
+}
+
+type SupplyRow = ReturnType<typeof supplyRows>[number];
+const range = (lo: number | null, hi: number | null, digits = 2) => (lo === null ? '–' : `${fmt(lo, digits)} – ${fmt(hi, digits)}`);
+
+const SUPPLY_COLUMNS = [
+  { key: 'distance', label: 'Distance' },
+  { key: 'mill', label: 'Mill' },
+  { key: 'n', label: 'n', numeric: true },
+  { key: 'weightPct', label: 'Share of heats %', numeric: true, digits: 1 },
+  { key: 'cpk', label: 'Cpk', numeric: true, digits: 2 },
+  { key: 'cpkInterval', label: 'Cpk 95%', htmlOnly: true, cell: (r: SupplyRow) => range(r.cpkLower, r.cpkUpper) },
+  { key: 'cpkLower', label: 'Cpk 95% low', csvOnly: true },
+  { key: 'cpkUpper', label: 'Cpk 95% high', csvOnly: true },
+  { key: 'ppk', label: 'Ppk', numeric: true, digits: 2 },
+  { key: 'ppkInterval', label: 'Ppk 95%', htmlOnly: true, cell: (r: SupplyRow) => range(r.ppkLower, r.ppkUpper) },
+  { key: 'ppkLower', label: 'Ppk 95% low', csvOnly: true },
+  { key: 'ppkUpper', label: 'Ppk 95% high', csvOnly: true },
+  { key: 'expectedPpm', label: 'Expected PPM', numeric: true, digits: 0 },
+  { key: 'ppmInterval', label: 'Expected PPM 95%', htmlOnly: true, cell: (r: SupplyRow) => range(r.ppmLower, r.ppmUpper, 0) },
+  { key: 'ppmLower', label: 'Expected PPM 95% low', csvOnly: true },
+  { key: 'ppmUpper', label: 'Expected PPM 95% high', csvOnly: true },
+  { key: 'observedPpm', label: 'Observed PPM', numeric: true, digits: 0 },
+];
+
 const INDEX_COLUMNS = [
   { key: 'distance', label: 'Distance' },
   { key: 'lsl', label: 'Band min', numeric: true },
@@ -128,7 +180,7 @@ export function capabilityPage(app: Hono<any>, db: Db) {
           <h1>Capability</h1>
           <p class="lead">
             How well does the supply fit the band? Indices against the band in force on {study.bandInForceOn}, the end of the window (version {study.band.version}, from {study.band.effectiveFrom}), {study.heats} heat(s).
-            {study.mill ? '' : ' All mills together: Cp and Cpk use the within-heat spread pooled from each mill on its own; Pp and Ppk use the spread of all heats, differences between mills included.'}
+            {study.mill || !study.distances.some((d) => d.supply) ? '' : ' Several mills: no single index is worked out over the mixture of mills (it can read better than every mill on its own). Each mill keeps its own indices, side by side below, and the supply figure is the share of heats expected outside the band, the mills’ shares weighted by their heats.'}
           </p>
           <SeriesForm action="/capability" choice={choice} anyMill />
           <Caution>Capability indices describe the supply as a whole; they neither accept nor reject a heat. Acceptance follows the purchase specification and qualified personnel; statistics do not replace testing.</Caution>
@@ -140,6 +192,15 @@ export function capabilityPage(app: Hono<any>, db: Db) {
             table: { columns: INDEX_COLUMNS, rows },
             openUpTo: 40,
           })}
+          {study.distances.some((d) => d.supply) ? (
+            <>
+              <h2>Supply: mills side by side</h2>
+              {kit.table('supply', `Supply ${choice.grade}: mills side by side`, { columns: SUPPLY_COLUMNS, rows: supplyRows(study.distances) })}
+              <p class="note">
+                Expected PPM per mill: normal model on the mill's mean and overall SD. Supply: the heat-weighted sum of the mills' expected PPM, its 95 % interval by generalized pivotal quantities (Weerahandi 1993) with the mix of mills held fixed. Cpk/Ppk intervals: Bissell (1990); the df of each index is in the API answer (intervals.method).
+              </p>
+            </>
+          ) : null}
           {chosen && r ? (
             <>
               <h2>At {where}</h2>
