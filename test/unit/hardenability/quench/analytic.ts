@@ -9,7 +9,7 @@
 //  - Finite rod 0..L, end z = 0 held, z = L insulated (Carslaw & Jaeger §3.3):
 //      θ = Σ 4/((2m+1)π) · sin((2m+1)πz/(2L)) · exp(−(2m+1)²π²αt/(4L²)).
 export function besselJ(n: number, x: number): number {
-  const m = 400;
+  const m = 200;
   let s = 0;
   for (let i = 0; i <= m; i++) {
     const tau = (Math.PI * i) / m;
@@ -21,7 +21,7 @@ export function besselJ(n: number, x: number): number {
 
 function bisect(f: (x: number) => number, a: number, b: number): number {
   let fa = f(a);
-  for (let i = 0; i < 100; i++) {
+  for (let i = 0; i < 60; i++) {
     const m = 0.5 * (a + b);
     const fm = f(m);
     if (fa * fm <= 0) b = m;
@@ -34,29 +34,42 @@ function bisect(f: (x: number) => number, a: number, b: number): number {
 }
 
 /** First `count` positive roots of β J1(β) − Bi J0(β) (Bi = Infinity: roots of J0). */
-const rootCache = new Map<string, number[]>();
-export function cylinderRoots(bi: number, count: number): number[] {
-  const key = `${bi}:${count}`;
-  const held = rootCache.get(key);
-  if (held) return held;
-  const f = bi === Infinity ? (b: number) => besselJ(0, b) : (b: number) => b * besselJ(1, b) - bi * besselJ(0, b);
+function scanZeros(f: (x: number) => number, count: number): number[] {
   const roots: number[] = [];
   let a = 1e-6;
-  const step = 0.01;
   let fa = f(a);
   while (roots.length < count) {
-    const b = a + step;
+    const b = a + 0.01;
     const fb = f(b);
     if (fa * fb < 0) roots.push(bisect(f, a, b));
     a = b;
     fa = fb;
   }
+  return roots;
+}
+const zeros: { j0: number[]; j1: number[] } = { j0: [], j1: [] };
+const rootCache = new Map<string, number[]>();
+
+/**
+ * First `count` positive roots of β J1(β) − Bi J0(β) (Bi = Infinity: the zeros of J0). The n-th root lies
+ * between the (n−1)-th zero of J1 (0 for n = 1) and the n-th zero of J0 (Carslaw & Jaeger §7.6), where it is bisected.
+ */
+export function cylinderRoots(bi: number, count: number): number[] {
+  const key = `${bi}:${count}`;
+  const held = rootCache.get(key);
+  if (held) return held;
+  if (zeros.j0.length < count) {
+    zeros.j0 = scanZeros((x) => besselJ(0, x), count);
+    zeros.j1 = scanZeros((x) => besselJ(1, x), count);
+  }
+  const f = (b: number) => b * besselJ(1, b) - bi * besselJ(0, b);
+  const roots = Array.from({ length: count }, (_, i) => (bi === Infinity ? zeros.j0[i] : bisect(f, i === 0 ? 1e-9 : zeros.j1[i - 1], zeros.j0[i])));
   rootCache.set(key, roots);
   return roots;
 }
 
 /** θ = (T − T∞)/(T0 − T∞) in a long cylinder at r/R, Fourier number Fo. */
-export function cylinderTheta(bi: number, rOverR: number, fo: number, terms = 60): number {
+export function cylinderTheta(bi: number, rOverR: number, fo: number, terms = 12): number {
   const roots = cylinderRoots(bi, terms);
   let s = 0;
   for (const b of roots) {
@@ -67,7 +80,7 @@ export function cylinderTheta(bi: number, rOverR: number, fo: number, terms = 60
 }
 
 /** dθ/dFo in a long cylinder (negative while cooling). */
-export function cylinderThetaRate(bi: number, rOverR: number, fo: number, terms = 60): number {
+export function cylinderThetaRate(bi: number, rOverR: number, fo: number, terms = 12): number {
   const roots = cylinderRoots(bi, terms);
   let s = 0;
   for (const b of roots) {
@@ -94,7 +107,7 @@ export function erf(x: number): number {
   return (2 / Math.sqrt(Math.PI)) * sum;
 }
 
-export function rodTheta(z: number, L: number, alphaT: number, terms = 200): number {
+export function rodTheta(z: number, L: number, alphaT: number, terms = 120): number {
   let s = 0;
   for (let m = 0; m < terms; m++) {
     const k = (2 * m + 1) * Math.PI;
