@@ -92,6 +92,16 @@ export interface FailedOnReceiptStory {
   failingPositions: number[];
 }
 
+export interface LabReadsHighStory {
+  title: string;
+  mill: string;
+  grade: string;
+  from: string;
+  biasHrc: number;
+  /** Heats cast from `from` on whose lots the plant re-tested: the pairs that show the shift. */
+  pairedHeatsAfter: string[];
+}
+
 export interface BandTighteningStory {
   title: string;
   grade: string;
@@ -107,6 +117,7 @@ export interface DemoStories {
   copiedCertificate: CopiedCertificateStory;
   smoothReporting: SmoothReportingStory;
   failedOnReceipt: FailedOnReceiptStory;
+  labReadsHigh: LabReadsHighStory;
   bandTightening: BandTighteningStory;
 }
 
@@ -275,6 +286,12 @@ function castDates(rng: Rng, scenario: Scenario, count: number): string[] {
   return days.map((d) => addDays(scenario.from, d));
 }
 
+/** The mill laboratory's bias on a heat's certificate (the lab-reads-high story), HRC. */
+export function labBiasAt(scenario: Scenario, mill: string, grade: string, castDate: string): number {
+  const s = scenario.stories.labReadsHigh;
+  return s.mill === mill && s.grade === grade && castDate >= s.from ? s.biasHrc : 0;
+}
+
 function isSmooth(scenario: Scenario, mill: string, castDate: string): boolean {
   const s = scenario.stories.smoothReporting;
   return s.mill === mill && castDate >= s.from;
@@ -313,7 +330,8 @@ function draftSupply(rng: Rng, scenario: Scenario, supply: DemoSupply, supplyInd
     const curve = trueCurve(model, chemistry, grainSize);
     const smooth = isSmooth(scenario, mill.code, castDate);
     const s = scenario.stories.smoothReporting;
-    const reported = measuredCurve(curve, chemistry.C, rng, smooth ? s.noiseHrc : mill.labNoiseHrc, smooth ? s.step : mill.hrcStep);
+    // The laboratory's bias adds no random draw, so every other heat of the stream stays as it was.
+    const reported = measuredCurve(curve, chemistry.C, rng, smooth ? s.noiseHrc : mill.labNoiseHrc, smooth ? s.step : mill.hrcStep, labBiasAt(scenario, mill.code, grade.code, castDate));
     const testDate = addDays(castDate, 1 + rng.int(2));
     const certificateDate = addDays(testDate, 1 + rng.int(4));
     const draft: HeatDraft = {
@@ -453,7 +471,7 @@ function bandInput(grade: DemoGrade, points: DemoBandPoint[], extra: Omit<BandIn
   };
 }
 
-function certificateOf(h: HeatDraft): CertificateInput {
+function certificateOf(scenario: Scenario, h: HeatDraft): CertificateInput {
   const chemistry = Object.fromEntries(REPORTED_ELEMENTS.map((e) => [e, h.chemistry[e]])) as unknown as CertificateInput['chemistry'];
   return {
     mill: h.mill.code,
@@ -478,7 +496,7 @@ function certificateOf(h: HeatDraft): CertificateInput {
         testDate: h.testDate,
         austenitizingC: h.grade.austenitizingC,
         distanceSystem: h.grade.distanceSystem,
-        laboratory: `${h.mill.name} test house`,
+        laboratory: labBiasAt(scenario, h.mill.code, h.grade.code, h.castDate) !== 0 ? scenario.stories.labReadsHigh.laboratory : `${h.mill.name} test house`,
         readings: h.grade.positions.map((at, i) => ({ at, hrc: h.reported[i] })),
       },
     ],
@@ -521,6 +539,7 @@ export function generateDemo(seed: number = DEFAULT_DEMO_SEED, scenario: Scenari
   const smooth = scenario.stories.smoothReporting;
   const smoothHeats = drafts.filter((d) => isSmooth(scenario, d.mill.code, d.castDate));
   const tightening = scenario.stories.bandTightening;
+  const labHigh = scenario.stories.labReadsHigh;
 
   const stories: DemoStories = {
     manganeseCreep: {
@@ -545,6 +564,16 @@ export function generateDemo(seed: number = DEFAULT_DEMO_SEED, scenario: Scenari
       heatNumbers: smoothHeats.map((d) => d.heatNumber),
     },
     failedOnReceipt,
+    labReadsHigh: {
+      title: "A mill laboratory that starts reading high",
+      mill: labHigh.mill,
+      grade: labHigh.grade,
+      from: labHigh.from,
+      biasHrc: labHigh.biasHrc,
+      pairedHeatsAfter: drafts
+        .filter((d) => d.mill.code === labHigh.mill && d.grade.code === labHigh.grade && d.castDate >= labHigh.from && d.lots.some((l) => l.retest !== null))
+        .map((d) => d.heatNumber),
+    },
     bandTightening: {
       title: 'A band purchasing wants to tighten',
       grade: tightening.grade,
@@ -585,7 +614,7 @@ export function generateDemo(seed: number = DEFAULT_DEMO_SEED, scenario: Scenari
       })),
     })),
     bands,
-    certificates: drafts.map(certificateOf),
+    certificates: drafts.map((d) => certificateOf(scenario, d)),
     retests: drafts.flatMap((d) => retestsOf(scenario, d)),
     stories,
   };

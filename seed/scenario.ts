@@ -92,6 +92,8 @@ export interface PlantedStories {
   copiedCertificate: { mill: string; grade: string; sourceOnOrAfter: string; copyOnOrAfter: string };
   smoothReporting: { mill: string; from: string; noiseHrc: number; step: number };
   failedOnReceipt: { mill: string; grade: string; onOrAfter: string; missByHrc: number };
+  /** A mill laboratory that reads high from a date on (its test house's tester out of adjustment). */
+  labReadsHigh: { mill: string; grade: string; from: string; biasHrc: number; laboratory: string };
   bandTightening: {
     grade: string;
     /**
@@ -301,6 +303,9 @@ export const SCENARIO: Scenario = {
     copiedCertificate: { mill: 'VARNHOLT', grade: '8620-D', sourceOnOrAfter: '2025-04-01', copyOnOrAfter: '2025-09-15' },
     smoothReporting: { mill: 'SERRANIA', from: '2025-06-01', noiseHrc: 0.15, step: 2 },
     failedOnReceipt: { mill: 'VARNHOLT', grade: '20MnCr5-D', onOrAfter: '2026-02-01', missByHrc: 2.5 },
+    // QUELLMARK tests its heavy 18CrNiMo7-D bars at a second test house (invented), whose hardness tester
+    // reads 1.5 HRC high from 2026-03-01 on; the steel itself does not change.
+    labReadsHigh: { mill: 'QUELLMARK', grade: '18CrNiMo7-D', from: '2026-03-01', biasHrc: 1.5, laboratory: 'Quellmark Bar Steel (invented) heavy-bar test house' },
     bandTightening: {
       grade: '4140-D',
       narrowShare: 0.35,

@@ -2,13 +2,12 @@
 // - Bland & Altman (1986), Lancet 327:307–310, Table 1 PEFR data and the values printed in the paper;
 // - scipy 1.10 / statsmodels 0.13 (Debian python3 packages) in test/reference/agreement_reference.py,
 //   versions recorded in agreement.json;
-// - Lucas & Saccucci (1990), Technometrics 32:1–12, Table 3 (EWMA λ = 0.1, L = 2.814: ARL0 500).
+// - Lucas & Saccucci (1990), Technometrics 32:1–12, Table 3 (EWMA λ = 0.1, L = 2.814: ARL 10.3 at a 1σ shift).
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { blandAltman } from '../../src/stats/blandAltman.ts';
 import { gaugeStudy, type GaugeReading } from '../../src/stats/gaugeStudy.ts';
-import { ewmaWidthForArl, pairedBiasChart } from '../../src/stats/pairedBiasChart.ts';
-import { ewmaArl } from '../../src/stats/runLength.ts';
+import { pairedBiasChart } from '../../src/stats/pairedBiasChart.ts';
 
 const fx = JSON.parse(readFileSync(new URL('./agreement.json', import.meta.url), 'utf8'));
 
@@ -120,19 +119,15 @@ describe('gauge R&R by ANOVA against statsmodels (agreement_reference.py)', () =
   });
 });
 
-describe('EWMA width for a designed in-control ARL', () => {
-  it('finds L = 2.814 for λ = 0.1 and ARL0 500 (Lucas & Saccucci 1990, Table 3)', () => {
-    expect(Math.abs(ewmaWidthForArl(0.1, 500) - 2.814)).toBeLessThan(0.005);
-  });
-
-  it('the chosen width gives the stated ARL by the Markov chain, and a paired-bias chart signals a planted shift', () => {
-    const L = ewmaWidthForArl(0.2, 1000);
-    expect(Math.abs(ewmaArl({ lambda: 0.2, L, shift: 0 }) / 1000 - 1)).toBeLessThan(0.01);
-    // Ten pairs on target, then the bias moves by 2.5 σ (in-control values are the ±0.5 pattern, our own).
+describe('paired-bias chart', () => {
+  it('signals a planted shift only after it, and reports its out-of-control ARLs by the Markov chain (Lucas & Saccucci 1990)', () => {
+    // Ten pairs on target, then the bias moves by 2.5 σ (the in-control ±0.5 pattern is our own input).
     const values = [...Array.from({ length: 10 }, (_, i) => (i % 2 ? 0.5 : -0.5)), ...Array.from({ length: 8 }, () => 2.5)];
-    const chart = pairedBiasChart(values, { target: 0, sigma: 1, arl0: 1000 });
+    const chart = pairedBiasChart(values, { target: 0, sigma: 1, lambda: 0.1, L: 2.814 });
     expect(chart.signals.every((i) => i >= 10)).toBe(true);
     expect(chart.firstSignal).not.toBeNull();
+    // Lucas & Saccucci (1990) Table 3, λ = 0.1, L = 2.814: ARL 10.3 for a one-sigma shift.
+    expect(Math.abs(chart.arlAtShift.oneSigma - 10.3)).toBeLessThan(0.15);
     expect(chart.arlAtShift.twoSigma).toBeLessThan(chart.arlAtShift.oneSigma);
   });
 });
