@@ -85,6 +85,8 @@ export interface CapabilityStudyOptions {
   minN?: number;
   /** Degrees of freedom of the within sigma in the Cp/Cpk intervals (src/stats/capability.ts). */
   intervalDf?: IntervalDfChoice;
+  /** Box–Cox fitted indices when normality is rejected (default 'auto'; 'never' for quick summaries). */
+  fitted?: 'auto' | 'never';
 }
 
 /** Values at a distance per mill, each mill's in its own (cast) order. */
@@ -108,7 +110,7 @@ export function supplyAt(points: readonly SeriesPoint[], limits: { lsl: number |
     const values = byMill.get(mill)!;
     let r: CapabilityResult;
     try {
-      r = capability({ values }, limits, { confidence: options.confidence, minN: options.minN, intervalDf: options.intervalDf });
+      r = capability({ values }, limits, { confidence: options.confidence, minN: options.minN, intervalDf: options.intervalDf, fitted: options.fitted ?? 'auto' });
     } catch {
       leftOut.push(mill);
       continue;
@@ -164,7 +166,7 @@ export function capabilityAtBand(curves: readonly HeatCurve[], band: Band, optio
       return { ...base, supply, result: null, note: supply ? why : `${why}; no mill has two heats with some spread here` };
     }
     try {
-      const result = capability({ values }, limits, { confidence: options.confidence, minN: options.minN, intervalDf: options.intervalDf });
+      const result = capability({ values }, limits, { confidence: options.confidence, minN: options.minN, intervalDf: options.intervalDf, fitted: options.fitted ?? 'auto' });
       return { ...base, result, note: result.flags.smallSample ? 'small sample: treat the indices as rough' : null };
     } catch (error) {
       return { ...base, result: null, note: (error as Error).message };

@@ -26,13 +26,22 @@
 // variance weighted by degrees of freedom, as in the two-sample t test; common practice).
 // Expected nonconforming (normal model): 10⁶·Φ((LSL − μ)/σ) below and 10⁶·Φ((μ − USL)/σ) above.
 // Observed: share of values strictly below LSL / above USL (a value on a limit conforms).
-// Normality: Anderson–Darling (D'Agostino & Stephens 1986). When normality is rejected at level
-// normalityAlpha, percentile indices (Clements 1989, Quality Progress 22(9):95–100; ISO 22514-2)
-// replace 6σ by X(0.99865) − X(0.00135) and μ by the median; here with empirical quantiles
-// (Hyndman & Fan definition 7), which need a large sample to reach the 0.135 % tails: with type 7 the
-// 0.135 % quantile lies between the two smallest values while (n − 1)·0.00135 < 1, so below
-// n = round(1/0.00135) = 741 the percentile spread is about the sample range, which falls short of the
-// 99.73 % spread and biases the index high (flag percentileFewData, raised only when it is computed).
+// Normality: judged with the reading resolution taken into account (src/stats/groupedNormality.ts):
+// readings on a grid coarse against σ (e.g. whole HRC) by a chi-square test on the grouped readings,
+// otherwise Anderson–Darling (D'Agostino & Stephens 1986); `normality` keeps the Anderson–Darling
+// result for reference, `normalityJudgement` says which test decided.
+// When normality is rejected at normalityAlpha (options.fitted 'auto'; the default is 'never'), a Box–Cox distribution is fitted
+// and the indices worked out from its quantiles (ISO 22514-2 distribution methods; src/stats/boxCox.ts),
+// with percentile-bootstrap intervals for its Ppk and expected PPM (Efron & Tibshirani 1993;
+// src/stats/bootstrap.ts, seeded). A mixture of mills or a drifting process is not a skewed
+// distribution: the stability flag and the supply view speak to those.
+// Percentile indices (ISO 22514-2; Clements 1989, Quality Progress 22(9):95–100, where the percentiles
+// come from fitted Pearson curves) replace 6σ by X(0.99865) − X(0.00135) and μ by the median; here with
+// empirical quantiles (Hyndman & Fan definition 7), which reach the 0.135 % tails only in a large sample:
+// with type 7 the 0.135 % quantile lies between the two smallest values while (n − 1)·0.00135 < 1, so
+// below n = round(1/0.00135) = 741 the percentile spread is about the sample range, which falls short of
+// the 99.73 % spread and biases the index high. So in 'auto' they are given only from 741 values, with a
+// bootstrap interval; 'always' computes them at any n (flag percentileFewData, no interval below 741).
 // Flags: n < minN (default 25); non-normal; unstable (any point flagged by the chosen Nelson rules,
 // default rule 1, on the individuals chart, or on the standardised X-bar of an X-bar/S chart, or an
 // S chart point beyond its limits; with a given within sigma, the individuals rules use that sigma
@@ -40,6 +49,9 @@
 import { chiSquareQuantile, normalCdf, normalQuantile } from './distributions.ts';
 import { StatsInputError, assertFinite, quantileSorted } from './descriptive.ts';
 import { andersonDarling, type AndersonDarlingResult } from './andersonDarling.ts';
+import { judgeNormality, type NormalityJudgement } from './groupedNormality.ts';
+import { boxCoxFit, boxCoxIndices, type FittedIndices } from './boxCox.ts';
+import { bootstrapPercentile, type BootstrapInterval } from './bootstrap.ts';
 import { individualsChart } from './individualsChart.ts';
 import { c4 } from './shewhartConstants.ts';
 import { xbarSChart } from './subgroupCharts.ts';
@@ -63,8 +75,19 @@ export interface CapabilityOptions {
   minN?: number;
   /** Nelson rules used for the stability flag (default [1]). */
   stabilityRules?: readonly NelsonRule[];
-  /** Percentile indices: 'auto' (when normality is rejected), 'always' or 'never' (default 'auto'). */
+  /**
+   * Percentile indices: 'auto' (when normality is rejected and n ≥ PERCENTILE_MIN_N), 'always' (any n)
+   * or 'never' (default 'auto').
+   */
   percentile?: 'auto' | 'always' | 'never';
+  /**
+   * Box–Cox fitted indices: 'auto' (when normality is rejected), 'always' or 'never' (default 'never':
+   * the fit and its bootstrap cost a few hundred refits, so callers that want it ask, as the capability
+   * study does).
+   */
+  fitted?: 'auto' | 'always' | 'never';
+  /** Bootstrap replicates for the fitted and percentile intervals (default 400) and their seed. */
+  bootstrap?: { replicates?: number; seed?: number };
   /**
    * A within sigma estimated elsewhere (e.g. pooled over mills with poolWithin), used instead of the
    * sigma of the series itself; individuals data only.
@@ -156,6 +179,16 @@ export interface PercentileIndices {
   ppu: number | null;
   ppl: number | null;
   ppk: number;
+  /** Bootstrap percentile interval of the percentile Ppk; null below PERCENTILE_MIN_N values. */
+  interval: BootstrapInterval | null;
+}
+
+/** Indices from a fitted (Box–Cox) distribution, with bootstrap intervals. */
+export interface FittedCapability extends FittedIndices {
+  method: 'box-cox';
+  lambda: number;
+  lambdaAtBound: boolean;
+  intervals: { ppk: BootstrapInterval | null; expectedPpm: BootstrapInterval | null };
 }
 
 export interface CapabilityResult {
@@ -186,6 +219,10 @@ export interface CapabilityResult {
   expectedPpm: { within: PpmSplit; overall: PpmSplit };
   observedPpm: PpmSplit;
   normality: AndersonDarlingResult | null;
+  /** Which normality test decided the nonNormal flag, and why (reading resolution; see header). */
+  normalityJudgement: NormalityJudgement | null;
+  /** Box–Cox fitted indices (when normality is rejected, or asked for); null when not fitted or not possible. */
+  fitted: FittedCapability | null;
   percentile: PercentileIndices | null;
   /** Indices flagged by the stability rules (observations for individuals, subgroups otherwise). */
   unstablePoints: number[];
@@ -358,19 +395,49 @@ export function capability(data: CapabilityData, band: SpecBand, options: Capabi
   const observedPpm = { below: (1e6 * below) / n, above: (1e6 * above) / n, total: (1e6 * (below + above)) / n };
 
   let normality: AndersonDarlingResult | null = null;
-  if (n >= 3) normality = andersonDarling(values);
-  const nonNormal = normality !== null && normality.pValue < normalityAlpha;
+  let judgement: NormalityJudgement | null = null;
+  if (n >= 3) {
+    normality = andersonDarling(values);
+    judgement = judgeNormality(values, normalityAlpha);
+  }
+  const nonNormal = judgement !== null && judgement.rejected;
+  const bootOptions = { replicates: options.bootstrap?.replicates ?? 400, seed: options.bootstrap?.seed, confidence };
 
-  let percentile: PercentileIndices | null = null;
-  if (percentileMode === 'always' || (percentileMode === 'auto' && nonNormal)) {
-    const p00135 = quantileSorted(sorted, 0.00135);
-    const p50 = quantileSorted(sorted, 0.5);
-    const p99865 = quantileSorted(sorted, 0.99865);
+  const fittedMode = options.fitted ?? 'never';
+  let fitted: FittedCapability | null = null;
+  if (n >= 3 && (fittedMode === 'always' || (fittedMode === 'auto' && nonNormal)) && values.every((x) => x > 0)) {
+    try {
+      const fit = boxCoxFit(values);
+      const idx = boxCoxIndices(fit, lsl, usl);
+      const [ppkIv, ppmIv] = bootstrapPercentile(
+        values,
+        (sample) => {
+          const b = boxCoxIndices(boxCoxFit(sample), lsl, usl);
+          return [b.ppk, b.expectedPpm];
+        },
+        bootOptions,
+      );
+      fitted = { method: 'box-cox', lambda: fit.lambda, lambdaAtBound: fit.atBound, ...idx, intervals: { ppk: ppkIv ?? null, expectedPpm: ppmIv ?? null } };
+    } catch {
+      fitted = null;
+    }
+  }
+
+  const percentileIndices = (s: ArrayLike<number>) => {
+    const p00135 = quantileSorted(s, 0.00135);
+    const p50 = quantileSorted(s, 0.5);
+    const p99865 = quantileSorted(s, 0.99865);
     const pp = lsl !== null && usl !== null ? (usl - lsl) / (p99865 - p00135) : null;
     const ppu = usl === null ? null : (usl - p50) / (p99865 - p50);
     const ppl = lsl === null ? null : (p50 - lsl) / (p50 - p00135);
     const ppk = ppu === null ? (ppl as number) : ppl === null ? ppu : Math.min(ppu, ppl);
-    percentile = { p00135, p50, p99865, pp, ppu, ppl, ppk };
+    return { p00135, p50, p99865, pp, ppu, ppl, ppk };
+  };
+  let percentile: PercentileIndices | null = null;
+  if (percentileMode === 'always' || (percentileMode === 'auto' && nonNormal && n >= PERCENTILE_MIN_N)) {
+    const interval =
+      n >= PERCENTILE_MIN_N ? (bootstrapPercentile(values, (sample) => [percentileIndices(Float64Array.from(sample).sort()).ppk], bootOptions)[0] ?? null) : null;
+    percentile = { ...percentileIndices(sorted), interval };
   }
 
   return {
@@ -404,6 +471,8 @@ export function capability(data: CapabilityData, band: SpecBand, options: Capabi
     expectedPpm: { within: expectedPpm(mu, sigmaWithin, lsl, usl), overall: expectedPpm(mu, sigmaOverall, lsl, usl) },
     observedPpm,
     normality,
+    normalityJudgement: judgement,
+    fitted,
     percentile,
     unstablePoints,
     flags: { smallSample: n < minN, nonNormal, unstable: unstablePoints.length > 0, percentileFewData: percentile !== null && n < PERCENTILE_MIN_N },

@@ -3,6 +3,10 @@
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { clopperPearson } from '../../src/stats/binomialBounds.ts';
+import { groupedNormalityTest, judgeNormality } from '../../src/stats/groupedNormality.ts';
+import { boxCoxFit, boxCoxIndices, boxCoxLogLikelihood } from '../../src/stats/boxCox.ts';
+import { andersonDarling } from '../../src/stats/andersonDarling.ts';
+import { capability } from '../../src/stats/capability.ts';
 import { supplyNonconforming } from '../../src/stats/supplyNonconforming.ts';
 import { simulatedPercentText, simulatedProbabilityText } from '../../src/web/probabilityText.ts';
 
@@ -46,4 +50,51 @@ describe('supply share outside the band (numpy/scipy generalized pivotal quantit
       expect(Math.abs(p.upper / ref.parts[i].upper - 1)).toBeLessThan(0.06);
     });
   });
+});
+
+describe('grouped-data normality test (scipy Nelder–Mead grouped MLE, chi2.sf; statsmodels normal_ad)', () => {
+  for (const g of fix.grouped as Array<{ name: string; values: number[]; step: number; mu: number; sigma: number; cells: number; observed: number[]; statistic: number; df: number; pValue: number; andersonDarlingP: number }>) {
+    it(g.name, () => {
+      const r = groupedNormalityTest(g.values, g.step);
+      expect(r.cells.map((c) => c.observed)).toEqual(g.observed);
+      expect(r.df).toBe(g.df);
+      expect(Math.abs(r.mu - g.mu)).toBeLessThan(1e-5);
+      expect(Math.abs(r.sigma / g.sigma - 1)).toBeLessThan(1e-5);
+      expect(Math.abs(r.statistic / g.statistic - 1)).toBeLessThan(1e-4);
+      expect(Math.abs(r.pValue! - g.pValue)).toBeLessThan(1e-5 + 1e-4 * g.pValue);
+      // Anderson–Darling on the same readings agrees with statsmodels normal_ad.
+      expect(Math.abs(andersonDarling(g.values).pValue - g.andersonDarlingP)).toBeLessThan(1e-6 + 1e-6 * g.andersonDarlingP);
+    });
+  }
+  it('whole-HRC normal readings: Anderson–Darling rejects (p ≈ 7e-5, statsmodels), the grouped test does not (p ≈ 0.15, scipy), and the judgement follows the grouped test', () => {
+    const [normal, skewed] = fix.grouped;
+    expect(normal.andersonDarlingP).toBeLessThan(0.05);
+    expect(normal.pValue).toBeGreaterThan(0.05);
+    const j = judgeNormality(normal.values);
+    expect(j.method).toBe('grouped-chi-square');
+    expect(j.rejected).toBe(false);
+    expect(capability({ values: normal.values }, { lsl: 30, usl: 42 }).flags.nonNormal).toBe(false);
+    // Real skew on whole-HRC readings is still seen (scipy p ≈ 5e-8).
+    expect(judgeNormality(skewed.values).rejected).toBe(true);
+  });
+});
+
+describe('Box–Cox fit (scipy.stats.boxcox_normmax "mle", boxcox_llf) and fitted indices (numpy, ISO 22514-2 quantile form)', () => {
+  for (const b of fix.boxCox as Array<Record<string, number> & { name: string; values: number[] }>) {
+    it(b.name, () => {
+      const fit = boxCoxFit(b.values);
+      expect(Math.abs(fit.lambda - b.lambda)).toBeLessThan(1e-4);
+      expect(fit.atBound).toBe(false);
+      expect(Math.abs(boxCoxLogLikelihood(b.values, b.lambda) - b.llf)).toBeLessThan(1e-8 * Math.abs(b.llf));
+      const idx = boxCoxIndices(fit, b.lsl, b.usl);
+      for (const k of ['x00135', 'x50', 'x99865', 'pp', 'ppu', 'ppl', 'ppk', 'expectedPpm'] as const) {
+        expect(Math.abs((idx[k] as number) / b[k] - 1)).toBeLessThan(2e-4);
+      }
+      // The capability result carries the same fit, with bootstrap intervals around it.
+      const r = capability({ values: b.values }, { lsl: b.lsl, usl: b.usl }, { fitted: 'always' });
+      expect(Math.abs(r.fitted!.ppk / b.ppk - 1)).toBeLessThan(2e-4);
+      expect(r.fitted!.intervals.ppk!.lower).toBeLessThan(b.ppk);
+      expect(r.fitted!.intervals.ppk!.upper).toBeGreaterThan(b.ppk);
+    });
+  }
 });

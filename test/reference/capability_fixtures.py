@@ -72,6 +72,89 @@ supply_parts = [
 ]
 fix["supply"] = {"input": supply_parts, "lsl": 31.0, "usl": 43.0, **gpq_supply(supply_parts, 31.0, 43.0, 400000, 11)}
 
+# --- Grouped-data chi-square test of normality (plain numpy/scipy, written from the published rule) ---
+from statsmodels.stats.diagnostic import normal_ad
+
+
+def grouped_test(x, h):
+    x = np.asarray(x, float)
+    n = len(x)
+    g = np.round(x / h).astype(int)
+    lo, hi = g.min(), g.max()
+    counts = np.array([(g == k).sum() for k in range(lo, hi + 1)])
+    mean = x.mean()
+    s2 = x.var(ddof=1)
+    sd0 = math.sqrt(max(s2 - h * h / 12, s2 / 4))
+    m = len(counts)
+    upper = [np.inf if j == m - 1 else (lo + j + 0.5) * h for j in range(m)]
+    lower = [-np.inf if j == 0 else (lo + j - 0.5) * h for j in range(m)]
+    prob = lambda a, b, mu, sd: stats.norm.cdf((b - mu) / sd) - stats.norm.cdf((a - mu) / sd)
+    groups, cur = [], None
+    for j in range(m):
+        if cur is None:
+            cur = [lower[j], upper[j], 0]
+        cur[1] = upper[j]
+        cur[2] += counts[j]
+        if n * prob(cur[0], cur[1], mean, sd0) >= 5:
+            groups.append(cur)
+            cur = None
+    if cur is not None:
+        if groups:
+            groups[-1][1] = cur[1]
+            groups[-1][2] += cur[2]
+        else:
+            groups.append(cur)
+    groups[-1][1] = np.inf
+    obs = np.array([gr[2] for gr in groups], float)
+    a = np.array([gr[0] for gr in groups])
+    b = np.array([gr[1] for gr in groups])
+
+    def nll(t):
+        mu, sd = t[0], math.exp(t[1])
+        p = stats.norm.cdf((b - mu) / sd) - stats.norm.cdf((a - mu) / sd)
+        if np.any(p[obs > 0] <= 0):
+            return np.inf
+        return -np.sum(obs[obs > 0] * np.log(p[obs > 0]))
+
+    res = optimize.minimize(nll, [mean, math.log(sd0)], method="Nelder-Mead", options={"xatol": 1e-10, "fatol": 1e-12, "maxiter": 20000})
+    mu, sd = res.x[0], math.exp(res.x[1])
+    e = n * (stats.norm.cdf((b - mu) / sd) - stats.norm.cdf((a - mu) / sd))
+    x2 = float(np.sum((obs - e) ** 2 / e))
+    df = len(groups) - 3
+    return {"mu": float(mu), "sigma": float(sd), "cells": len(groups), "observed": f(obs), "statistic": x2, "df": df, "pValue": float(stats.chi2.sf(x2, df)) if df >= 1 else None}
+
+
+rng = np.random.default_rng(20261204)
+whole_normal = np.round(36.3 + 1.5 * rng.standard_normal(100))
+skew_raw = 28 + rng.gamma(2.0, 2.0, 150)
+skew_small = 2 + rng.gamma(2.0, 2.0, 150)
+whole_skew = np.round(skew_raw)
+fix["grouped"] = [
+    {"name": "whole-HRC normal, n = 100", "values": f(whole_normal), "step": 1.0, **grouped_test(whole_normal, 1.0), "andersonDarlingP": float(normal_ad(whole_normal)[1])},
+    {"name": "whole-HRC skewed (28 + Gamma(2, 2)), n = 150", "values": f(whole_skew), "step": 1.0, **grouped_test(whole_skew, 1.0), "andersonDarlingP": float(normal_ad(whole_skew)[1])},
+]
+
+# --- Box-Cox maximum likelihood (scipy.stats.boxcox_normmax, method "mle") and fitted indices --------
+def boxcox_indices(x, lsl, usl):
+    lam = float(stats.boxcox_normmax(x, method="mle"))
+    y = stats.boxcox(x, lmbda=lam)
+    my, sy = float(np.mean(y)), float(np.std(y, ddof=1))
+    inv = lambda v: float(np.power(lam * v + 1, 1 / lam)) if abs(lam) > 1e-12 else math.exp(v)
+    q = lambda p: inv(my + stats.norm.ppf(p) * sy)
+    x00135, x50, x99865 = q(0.00135), q(0.5), q(0.99865)
+    t = lambda v: float(stats.boxcox(np.array([v]), lmbda=lam)[0])
+    ppu = (usl - x50) / (x99865 - x50)
+    ppl = (x50 - lsl) / (x50 - x00135)
+    ppm = 1e6 * (stats.norm.cdf((t(lsl) - my) / sy) + stats.norm.sf((t(usl) - my) / sy))
+    return {"lambda": lam, "llf": float(stats.boxcox_llf(lam, x)), "mean": my, "sd": sy, "x00135": x00135, "x50": x50, "x99865": x99865, "pp": (usl - lsl) / (x99865 - x00135), "ppu": ppu, "ppl": ppl, "ppk": min(ppu, ppl), "expectedPpm": float(ppm)}
+
+
+lognormal = np.exp(rng.normal(math.log(8.0), 0.35, 120))
+fix["boxCox"] = [
+    {"name": "2 + Gamma(2, 2), n = 150", "values": f(skew_small), "lsl": 1.5, "usl": 25.0, **boxcox_indices(skew_small, 1.5, 25.0)},
+    {"name": "lognormal(ln 8, 0.35), n = 120", "values": f(lognormal), "lsl": 2.0, "usl": 25.0, **boxcox_indices(lognormal, 2.0, 25.0)},
+]
+
 if __name__ == "__main__":
     with open(OUT, "w") as fh:
         json.dump(fix, fh, indent=1)

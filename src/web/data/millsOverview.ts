@@ -128,7 +128,7 @@ export async function millsOverview(db: Db, window: { from?: string; to?: string
         if (verdict === 'pass') inBand++;
         else if (verdict === 'fail') failed++;
       }
-      const lowest = activeBand ? lowestPpk(capabilityAtBand(certificates, activeBand)) : null;
+      const lowest = activeBand ? lowestPpk(capabilityAtBand(certificates, activeBand, { fitted: 'never' })) : null;
       const { trend, position } = activeBand ? trendAt(certificates, activeBand, lowest, { grade: grade.code, mill }) : { trend: 'too few heats' as TrendWord, position: null };
       rows.push({
         mill,

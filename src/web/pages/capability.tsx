@@ -14,23 +14,32 @@ import { SeriesForm } from '../components/seriesForm.tsx';
 import { readSeriesChoice, type SeriesChoice } from '../data/seriesPicker.ts';
 import { page } from '../page.tsx';
 import { fmt, mmLabel, ParamError } from '../params.ts';
-import { histogramSpec, pagePpkSpec, probabilityPlotSpec, readingStep } from '../specs/capability.ts';
+import { histogramSpec, pagePpkSpec, probabilityPlotSpec } from '../specs/capability.ts';
 
 /** The flags of a capability result, each in a sentence a buyer can act on. */
-export function flagSentences(r: CapabilityResult, values: readonly number[] = []): string[] {
+export function flagSentences(r: CapabilityResult, _values: readonly number[] = []): string[] {
   const out: string[] = [];
-  const step = values.length ? readingStep(values) : null;
   if (r.flags.smallSample) out.push(`Only ${r.n} heats: the indices are rough, as the width of their intervals shows. Wait for more heats before drawing conclusions.`);
+  const j = r.normalityJudgement;
+  const test = j ? (j.method === 'grouped-chi-square' ? `chi-square test on the ${j.readingStep} HRC grid, p = ${fmt(j.pValue, 3)}` : `Anderson–Darling p = ${fmt(j.pValue, 3)}`) : '';
   if (r.flags.nonNormal) {
-    out.push(
-      `The values do not look normal (Anderson–Darling p = ${fmt(r.normality?.pValue ?? null, 3)}): the normal-based indices and expected PPM may mislead.${r.percentile ? ` The percentile-based Ppk, ${fmt(r.percentile.ppk)}, does not assume normality.` : ''}`,
-    );
+    out.push(`The values do not look normal (${test}): the normal-based indices and expected PPM may mislead.`);
+    if (r.fitted) {
+      const iv = r.fitted.intervals.ppk;
+      out.push(
+        `A fitted Box–Cox distribution (λ = ${fmt(r.fitted.lambda, 2)}${r.fitted.lambdaAtBound ? ', at the end of its range: the shape is not well described' : ''}) gives Ppk ${fmt(r.fitted.ppk)}${iv ? ` (95% bootstrap interval ${fmt(iv.lower)} – ${fmt(iv.upper)})` : ''} and ${fmt(r.fitted.expectedPpm, 0)} PPM expected outside (ISO 22514-2 distribution method). A mixture of mills or a drift is not skew: check the per-mill figures and the trend first.`,
+      );
+    }
+    if (r.percentile && r.percentile.interval) {
+      out.push(`The percentile-based Ppk, ${fmt(r.percentile.ppk)} (95% bootstrap interval ${fmt(r.percentile.interval.lower)} – ${fmt(r.percentile.interval.upper)}), does not assume a distribution; it rests on ${r.n} heats, enough to reach the 0.135 % tails.`);
+    }
     if (r.percentile && r.flags.percentileFewData) {
       out.push(
         `The percentile-based Ppk needs about ${PERCENTILE_MIN_N} heats or more: with ${r.n}, its 0.135 % and 99.865 % points are about the lowest and highest heats, which sit inside the true spread, so ${fmt(r.percentile.ppk)} reads too high. Take it as an optimistic figure.`,
       );
     }
-    if (step !== null && step >= 0.5) out.push(`Every reading is a multiple of ${step} HRC: rounding alone makes a normality test reject in a long series, so judge the shape from the probability plot (a staircase there is the rounding, a bend is not).`);
+  } else if (j && j.method === 'grouped-chi-square') {
+    out.push(`Readings are on a ${j.readingStep} HRC grid, so normality is judged on the grouped readings (${test}), where a test for continuous data would reject for the rounding alone.`);
   }
   if (r.flags.unstable) out.push(`${r.unstablePoints.length} heat(s) fall outside the individuals-chart limits: the process was not stable over this window, so a capability index describes a mixture, not one process. See Trends.`);
   if (out.length === 0) out.push('No flag: enough heats, no sign of non-normality, and no heat outside the control limits.');
@@ -60,9 +69,10 @@ function indexRow(d: DistanceCapability, mill: string | null) {
     ppkLower: r?.intervals.ppk.lower ?? null,
     ppkUpper: r?.intervals.ppk.upper ?? null,
     percentilePpk: r?.percentile?.ppk ?? null,
+    fittedPpk: r?.fitted?.ppk ?? null,
     expectedPpm: r?.expectedPpm.overall.total ?? null,
     observedPpm: r?.observedPpm.total ?? null,
-    adP: r?.normality?.pValue ?? null,
+    adP: r?.normalityJudgement?.pValue ?? null,
     flags: r ? Object.entries(r.flags).filter(([, v]) => v).map(([k]) => FLAG_WORDS[k] ?? k.replace(/([A-Z])/g, ' $1').toLowerCase()).join(', ') : (d.note ?? ''),
   };
 }
@@ -140,9 +150,10 @@ const INDEX_COLUMNS = [
   { key: 'ppkLower', label: 'Ppk 95% low', csvOnly: true },
   { key: 'ppkUpper', label: 'Ppk 95% high', csvOnly: true },
   { key: 'percentilePpk', label: 'Ppk (percentile)', numeric: true, digits: 2 },
+  { key: 'fittedPpk', label: 'Ppk (Box–Cox fit)', numeric: true, digits: 2 },
   { key: 'expectedPpm', label: 'Expected PPM', numeric: true, digits: 0 },
   { key: 'observedPpm', label: 'Observed PPM', numeric: true, digits: 0 },
-  { key: 'adP', label: 'A–D p', numeric: true, digits: 3 },
+  { key: 'adP', label: 'Normality p', numeric: true, digits: 3 },
   { key: 'flags', label: 'Flags', wrap: true },
 ];
 
@@ -187,7 +198,7 @@ export function capabilityPage(app: Hono<any>, db: Db) {
           {kit.chart({
             id: 'ppk',
             title: `Ppk by distance: ${who}`,
-            note: `Point: Ppk; bar: its 95% interval (Bissell 1990); dashed line: 1.33. In the table, Ppk (percentile) from fewer than ${PERCENTILE_MIN_N} heats rests on the lowest and highest heats and reads too high.`,
+            note: `Point: Ppk; bar: its 95% interval (Bissell 1990); dashed line: 1.33. In the table: where normality is rejected (on the grouped readings when they are whole HRC), Ppk (Box–Cox fit) from a fitted distribution; Ppk (percentile) only from ${PERCENTILE_MIN_N} heats, where the 0.135 % tails can be read from the data.`,
             spec: pagePpkSpec(study),
             table: { columns: INDEX_COLUMNS, rows },
             openUpTo: 40,

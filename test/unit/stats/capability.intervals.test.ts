@@ -76,7 +76,7 @@ describe('coverage of the 95 % intervals (seeded Monte Carlo, 3000 replications)
     let ppk = 0;
     let cpOldDf = 0;
     for (let i = 0; i < reps; i++) {
-      const r = capability({ values: normals(rng, n, 0.5, 1) }, { lsl: -4, usl: 3 }, { percentile: 'never', stabilityRules: [] });
+      const r = capability({ values: normals(rng, n, 0.5, 1) }, { lsl: -4, usl: 3 }, { percentile: 'never', fitted: 'never', stabilityRules: [] });
       if (covers(r.intervals.cp!, trueCp)) cp++;
       if (covers(r.intervals.cpk, trueCpk)) cpk++;
       if (covers(r.intervals.pp!, trueCp)) pp++;
@@ -99,7 +99,7 @@ describe('coverage of the 95 % intervals (seeded Monte Carlo, 3000 replications)
     let cp = 0;
     for (let i = 0; i < reps; i++) {
       const groups = Array.from({ length: 10 }, () => normals(rng, 5, 0.5, 1));
-      const r = capability({ subgroups: groups }, { lsl: -4, usl: 3 }, { percentile: 'never', stabilityRules: [] });
+      const r = capability({ subgroups: groups }, { lsl: -4, usl: 3 }, { percentile: 'never', fitted: 'never', stabilityRules: [] });
       if (covers(r.intervals.cp!, trueCp)) cp++;
     }
     expect(cp / reps).toBeGreaterThanOrEqual(0.93);
@@ -150,10 +150,10 @@ describe('percentile index with few data', () => {
     expect(PERCENTILE_MIN_N).toBe(741);
     const rng = createRng(11);
     const small = normals(rng, 200, 36, 1);
-    expect(capability({ values: small }, { lsl: 31, usl: 41 }, { percentile: 'always' }).flags.percentileFewData).toBe(true);
-    expect(capability({ values: small }, { lsl: 31, usl: 41 }, { percentile: 'never' }).flags.percentileFewData).toBe(false);
+    expect(capability({ values: small }, { lsl: 31, usl: 41 }, { percentile: 'always', fitted: 'never' }).flags.percentileFewData).toBe(true);
+    expect(capability({ values: small }, { lsl: 31, usl: 41 }, { percentile: 'never', fitted: 'never' }).flags.percentileFewData).toBe(false);
     const large = normals(rng, 800, 36, 1);
-    expect(capability({ values: large }, { lsl: 31, usl: 41 }, { percentile: 'always' }).flags.percentileFewData).toBe(false);
+    expect(capability({ values: large }, { lsl: 31, usl: 41 }, { percentile: 'always', fitted: 'never' }).flags.percentileFewData).toBe(false);
   });
 
   it('the reason: at n = 100 the percentile Pp of normal data reads well above the true Pp', () => {

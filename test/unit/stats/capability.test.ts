@@ -63,10 +63,19 @@ describe('capability indices (ISO 22514-2; NIST/SEMATECH e-Handbook §6.1.6)', (
     expect(u.unstablePoints).toContain(30);
     // A strongly skewed series (squares of a uniform grid) is rejected by Anderson–Darling.
     const skewed = Array.from({ length: 200 }, (_, i) => 30 + 10 * ((i * 61) % 200 / 200) ** 4);
-    const s = capability({ values: skewed }, { lsl: 29, usl: 45 });
+    const s = capability({ values: skewed }, { lsl: 29, usl: 45 }, { fitted: 'auto' });
     expect(s.flags.nonNormal).toBe(true);
-    expect(s.percentile).not.toBeNull();
-    expect(s.percentile!.pp).toBeCloseTo(16 / (s.percentile!.p99865 - s.percentile!.p00135), 12);
+    expect(s.normalityJudgement!.method).toBe('anderson-darling');
+    // 200 values: too few for empirical 0.135 % points (ISO 22514-2 percentile method), so in 'auto' a
+    // fitted Box–Cox distribution answers instead, with bootstrap intervals.
+    expect(s.percentile).toBeNull();
+    expect(s.fitted).not.toBeNull();
+    expect(s.fitted!.intervals.ppk!.lower).toBeLessThanOrEqual(s.fitted!.ppk);
+    const forced = capability({ values: skewed }, { lsl: 29, usl: 45 }, { percentile: 'always', fitted: 'never' });
+    expect(forced.percentile!.pp).toBeCloseTo(16 / (forced.percentile!.p99865 - forced.percentile!.p00135), 12);
+    expect(forced.flags.percentileFewData).toBe(true);
+    expect(forced.percentile!.interval).toBeNull();
+    expect(forced.fitted).toBeNull();
     expect(capability({ values: x }, { lsl: 30, usl: 42 }).percentile).toBeNull();
   });
   it('subgroup data: within sigma is the X-bar/S chart sigma (s-bar/c4)', () => {
@@ -92,12 +101,12 @@ describe('capability properties (fast-check)', () => {
   it('indices are invariant when data and band are shifted together', () => {
     fc.assert(
       fc.property(series, fc.double({ min: -50, max: 50, noNaN: true }), fc.boolean(), (xs, shift, twoSided) => {
-        const probe = capability({ values: xs }, { lsl: 0 }, { percentile: 'never' });
+        const probe = capability({ values: xs }, { lsl: 0 }, { percentile: 'never', fitted: 'never' });
         fc.pre(probe.sigmaWithin > 1e-6 && probe.sigmaOverall > 1e-6);
         const band: { lsl: number | null; usl: number; target: number | null } = twoSided
           ? { lsl: 15, usl: 65, target: 40 }
           : { lsl: null, usl: 65, target: null };
-        const a = capability({ values: xs }, band, { percentile: 'always' });
+        const a = capability({ values: xs }, band, { percentile: 'always', fitted: 'never' });
         const b = capability(
           { values: xs.map((v) => v + shift) },
           {
@@ -105,7 +114,7 @@ describe('capability properties (fast-check)', () => {
             usl: band.usl + shift,
             target: band.target === null ? null : band.target + shift,
           },
-          { percentile: 'always' },
+          { percentile: 'always', fitted: 'never' },
         );
         for (const key of ['cp', 'cpu', 'cpl', 'cpk', 'pp', 'ppu', 'ppl', 'ppk', 'cpm'] as const) {
           const va = a[key];
