@@ -14,6 +14,7 @@ import { ingestRoutes } from './routes/ingest.ts';
 import { analysisRoutes } from './routes/analysis.ts';
 import { alertRoutes } from './routes/alerts.ts';
 import { webhookRoutes } from './routes/webhooks.ts';
+import { receivingRoutes } from './routes/receiving.ts';
 import { accessControl, type AfterWriteHook } from '../auth/middleware.ts';
 import { annotateRoles } from '../auth/openapiRoles.ts';
 import { webRoutes } from '../web/routes.ts';
@@ -57,6 +58,7 @@ export function createApp({ database, logger, version = '0.1.0', access = {} }: 
   analysisRoutes(app, database.db);
   alertRoutes(app, database.db);
   webhookRoutes(app, database.db);
+  receivingRoutes(app, database.db);
   webRoutes(app, database.db);
 
   // Every operation's role comes from the access policy (x-required-role, x-roles, security).
