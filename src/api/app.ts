@@ -14,6 +14,7 @@ import { ingestRoutes } from './routes/ingest.ts';
 import { analysisRoutes } from './routes/analysis.ts';
 import { alertRoutes } from './routes/alerts.ts';
 import { webhookRoutes } from './routes/webhooks.ts';
+import { partRequirementRoutes } from './routes/partRequirement.ts';
 import { receivingRoutes } from './routes/receiving.ts';
 import { accessControl, type AfterWriteHook } from '../auth/middleware.ts';
 import { annotateRoles } from '../auth/openapiRoles.ts';
@@ -58,6 +59,7 @@ export function createApp({ database, logger, version = '0.1.0', access = {} }: 
   analysisRoutes(app, database.db);
   alertRoutes(app, database.db);
   webhookRoutes(app, database.db);
+  partRequirementRoutes(app, database.db);
   receivingRoutes(app, database.db);
   webRoutes(app, database.db);
 
