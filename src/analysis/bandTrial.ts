@@ -1,18 +1,29 @@
 // Band trial: replay history under a proposed band, per mill, beside the band in force. A heat fails when
 // its deciding test(s) fail at any band point (src/hardenability/conformance.ts: receiving inspection
 // overrides the mill certificate; between readings, monotone cubic interpolation); Ppk and the expected
-// nonconforming PPM per distance come from src/stats/capability.ts (normal model). The whole-curve
-// expected PPM is bounded above by the sum over distances (Boole's inequality), and is labelled so.
-// Suggestion: the tightest band of the same shape (same distances and sides) each mill held for a chosen
-// share of heats: at each distance the empirical quantiles (Hyndman & Fan type 7) at a common tail
-// probability a, the largest a for which the share of heats inside at every distance is still at least
-// the chosen share (found by bisection; the share is then recounted directly). Limits are rounded
-// outwards to 0.1 HRC.
+// nonconforming PPM per distance come from src/stats/capability.ts (normal model).
+// Whole-curve expected share outside the band: from the joint distribution of the curve, a multivariate
+// normal with the mean vector and sample covariance of the heats measured at every band distance,
+// by the seeded Monte Carlo the heat sheet uses (wholeBandProbability in prediction.ts), with
+// Clopper–Pearson bounds for the simulation size (src/stats/binomialBounds.ts). Readings reported on a
+// grid (e.g. whole HRC) stand for the interval they were rounded from, so a simulated curve counts as
+// reported outside only beyond limit ± step/2. The bounds cover the simulation only, not the estimation
+// of the mean and covariance.
+// Suggestion: the tightest band of the same shape (same distances and sides) from normal tolerance
+// limits per distance (ISO 16269-6; Hahn & Meeker 1991; src/stats/toleranceLimits.ts), x̄ ± k·s, with
+// Bonferroni over the m distances: content 1 − (1 − share)/m and confidence 1 − (1 − γ)/m each, so that
+// with confidence ≥ γ the band holds at least the chosen share of curves (Boole's inequality, whatever
+// the correlation). Limits are rounded outwards to 0.1 HRC. Checked out of sample: the same rule on the
+// older two thirds of the heats (cast order), counted on the newer third.
 import type { Db } from '../db/connection.ts';
 import { heatConformance } from '../hardenability/conformance.ts';
 import { validateBand, type Band } from '../hardenability/bands.ts';
 import { capability } from '../stats/capability.ts';
-import { quantileSorted } from '../stats/descriptive.ts';
+import { estimateCovariance } from '../stats/covariance.ts';
+import { clopperPearson } from '../stats/binomialBounds.ts';
+import { readingStep } from '../stats/groupedNormality.ts';
+import { oneSidedToleranceFactor, twoSidedToleranceFactor } from '../stats/toleranceLimits.ts';
+import { wholeBandProbability } from './prediction.ts';
 import { bandOn, bandSummary, type BandSummary } from './bandOf.ts';
 import { invalidInput } from './errors.ts';
 import { asTest, curvesOfMill, groupByHeat, loadSeriesCurves, millsOf, pointsAt, todayIso, type HeatCurve, type SeriesSource } from './seriesData.ts';
@@ -44,15 +55,35 @@ export interface BandOutcome {
   /** Heats with a band point not tested (neither pass nor fail). */
   incomplete: number;
   perDistance: DistanceOutcome[];
-  /** Sum over distances of the expected PPM: an upper bound for the whole curve. */
-  expectedPpmUpperBound: number | null;
+  /** Expected share of curves outside the band from the joint (multivariate normal) distribution; see header. */
+  expectedShare: JointShare | null;
+}
+
+export interface JointShare {
+  /** Expected share of curves outside the band (0..1), with Clopper–Pearson bounds for the simulation size. */
+  share: number;
+  lower: number;
+  upper: number;
+  draws: number;
+  /** Heats measured at every band distance, on which the mean and covariance were estimated. */
+  heats: number;
+  /** Reading grid the limits were widened by half of, or null. */
+  readingStep: number | null;
+  method: string;
 }
 
 export interface BandSuggestion {
   targetShare: number;
-  /** Share of heats (measured at every band distance) inside the suggested band, counted directly. */
+  /** Confidence γ that the band holds at least targetShare of curves. */
+  confidence: number;
+  /** Share of the heats (measured at every band distance) inside the suggested band, counted directly (in sample). */
   heldShare: number;
   heatsCounted: number;
+  /** The same rule fitted on the older two thirds, counted on the newer third; null below 30 heats. */
+  outOfSample: { fittedOn: number; checkedOn: number; heldShare: number; checkedFrom: string } | null;
+  /** Share of curves inside under the fitted multivariate normal (point estimate, Monte Carlo). */
+  simulatedShare: number | null;
+  method: string;
   points: Array<{ distanceMm: number; label: string | null; minHrc: number | null; maxHrc: number | null }>;
 }
 
@@ -101,7 +132,6 @@ export function bandOutcome(curves: readonly HeatCurve[], band: Band): BandOutco
     const observedFailures = values.filter((v) => (p.minHrc !== undefined && v < p.minHrc) || (p.maxHrc !== undefined && v > p.maxHrc)).length;
     return { distanceMm: p.mm, label: p.label ?? null, minHrc: p.minHrc ?? null, maxHrc: p.maxHrc ?? null, n: values.length, ppk, expectedPpm, observedFailures };
   });
-  const ppms = perDistance.map((d) => d.expectedPpm);
   return {
     heats: groups.length,
     failing,
@@ -109,58 +139,135 @@ export function bandOutcome(curves: readonly HeatCurve[], band: Band): BandOutco
     failingShare: groups.length ? failing.length / groups.length : 0,
     incomplete,
     perDistance,
-    expectedPpmUpperBound: ppms.every((v) => v !== null) ? Math.min(1e6, ppms.reduce((a, b) => a! + b!, 0)!) : null,
+    expectedShare: jointExpectedShare(curves, band),
+  };
+}
+
+/** Heats measured at every band distance, in cast order, with their values per band point. */
+function completeCurves(curves: readonly HeatCurve[], band: Band) {
+  const series = band.points.map((p) => pointsAt(curves, p.mm));
+  const columns = series.map((pts) => new Map(pts.map((s) => [s.heatId, s.value])));
+  const castDate = new Map(series[0].map((s) => [s.heatId, s.castDate]));
+  const heatIds = series[0].map((s) => s.heatId).filter((id) => columns.every((c) => c.has(id)));
+  return { heatIds, castDate, rows: heatIds.map((id) => columns.map((c) => c.get(id)!)) };
+}
+
+const DRAWS = 20000;
+const SEED = 20261204;
+
+/** Share of simulated curves inside limits under the fitted multivariate normal of the rows; null if degenerate. */
+function simulatedInside(rows: number[][], limits: Array<{ min: number | null; max: number | null }>): { inside: number; step: number | null } | null {
+  const est = estimateCovariance(rows, 'sample');
+  const sd = est.covariance.map((r, j) => Math.sqrt(r[j]));
+  if (!sd.every((v) => v > 0)) return null;
+  const R = est.covariance.map((r, a) => r.map((v, b) => v / (sd[a] * sd[b])));
+  const step = readingStep(rows.flat());
+  const half = step === null ? 0 : step / 2;
+  const widened = limits.map((l) => ({ min: l.min === null ? null : l.min - half, max: l.max === null ? null : l.max + half }));
+  return { inside: wholeBandProbability(est.mean, sd, R, widened, { draws: DRAWS, seed: SEED }).probability, step };
+}
+
+/** Expected share of curves outside the band from the joint distribution (pure; see header). */
+export function jointExpectedShare(curves: readonly HeatCurve[], band: Band): JointShare | null {
+  const { rows } = completeCurves(curves, band);
+  if (rows.length < Math.max(10, band.points.length + 2)) return null;
+  const sim = simulatedInside(rows, band.points.map((p) => ({ min: p.minHrc ?? null, max: p.maxHrc ?? null })));
+  if (!sim) return null;
+  const outside = Math.round((1 - sim.inside) * DRAWS);
+  const b = clopperPearson(outside, DRAWS);
+  return {
+    share: b.estimate,
+    lower: b.lower,
+    upper: b.upper,
+    draws: DRAWS,
+    heats: rows.length,
+    readingStep: sim.step,
+    method: 'multivariate normal (mean vector and sample covariance of the complete curves), seeded Monte Carlo; Clopper–Pearson bounds for the simulation size',
   };
 }
 
 const floor1 = (v: number) => Math.floor(v * 10 + 1e-9) / 10;
 const ceil1 = (v: number) => Math.ceil(v * 10 - 1e-9) / 10;
 
-/** The tightest band of the same shape that held the target share of heats (pure); null when too few heats. */
-export function suggestBand(curves: readonly HeatCurve[], shape: Band, targetShare: number): BandSuggestion | null {
-  if (!(targetShare > 0 && targetShare <= 1)) throw invalidInput('the share of heats must be in (0, 1]');
-  const columns = shape.points.map((p) => new Map(pointsAt(curves, p.mm).map((s) => [s.heatId, s.value])));
-  const heatIds = [...columns[0].keys()].filter((id) => columns.every((c) => c.has(id)));
-  if (heatIds.length < 10) return null;
-  const sorted = columns.map((c) => Float64Array.from(heatIds.map((id) => c.get(id)!)).sort());
-  const limitsAt = (a: number) =>
-    shape.points.map((p, j) => {
-      const two = p.minHrc !== undefined && p.maxHrc !== undefined;
-      const tail = two ? a / 2 : a;
-      return {
-        min: p.minHrc === undefined ? null : floor1(quantileSorted(sorted[j], tail)),
-        max: p.maxHrc === undefined ? null : ceil1(quantileSorted(sorted[j], 1 - tail)),
-      };
-    });
-  const share = (lims: ReturnType<typeof limitsAt>) =>
-    heatIds.filter((id) => lims.every((l, j) => {
-      const v = columns[j].get(id)!;
-      return (l.min === null || v >= l.min) && (l.max === null || v <= l.max);
-    })).length / heatIds.length;
-  let lo = 0;
-  let hi = 1;
-  for (let i = 0; i < 40; i++) {
-    const mid = (lo + hi) / 2;
-    if (share(limitsAt(mid)) >= targetShare) lo = mid;
-    else hi = mid;
+type Limits = Array<{ min: number | null; max: number | null }>;
+
+/** Tolerance limits of the band's shape from the rows (Bonferroni over the distances; see header). */
+function toleranceBand(rows: number[][], shape: Band, share: number, confidence: number): Limits {
+  const m = shape.points.length;
+  const content = 1 - (1 - share) / m;
+  const each = 1 - (1 - confidence) / m;
+  const n = rows.length;
+  return shape.points.map((p, j) => {
+    const col = rows.map((r) => r[j]);
+    const mean = col.reduce((a, b) => a + b, 0) / n;
+    const sd = Math.sqrt(col.reduce((a, b) => a + (b - mean) ** 2, 0) / (n - 1));
+    const two = p.minHrc !== undefined && p.maxHrc !== undefined;
+    const k = two ? twoSidedToleranceFactor(n, content, each) : oneSidedToleranceFactor(n, content, each);
+    return { min: p.minHrc === undefined ? null : floor1(mean - k * sd), max: p.maxHrc === undefined ? null : ceil1(mean + k * sd) };
+  });
+}
+
+function shareInside(rows: number[][], lims: Limits): number {
+  if (rows.length === 0) return 0;
+  return rows.filter((r) => lims.every((l, j) => (l.min === null || r[j] >= l.min) && (l.max === null || r[j] <= l.max))).length / rows.length;
+}
+
+/** Fewest complete curves for a suggestion, and for the out-of-sample check. */
+export const SUGGESTION_MIN_HEATS = 10;
+export const OUT_OF_SAMPLE_MIN_HEATS = 30;
+
+/**
+ * The tightest band of the same shape that holds the target share of curves with the given confidence,
+ * from normal tolerance limits (pure; see header); null when too few heats or no spread.
+ */
+export function suggestBand(curves: readonly HeatCurve[], shape: Band, targetShare: number, confidence = 0.95): BandSuggestion | null {
+  if (!(targetShare > 0 && targetShare < 1)) throw invalidInput('the share of heats must be in (0, 1)');
+  if (!(confidence > 0 && confidence < 1)) throw invalidInput('the confidence must be in (0, 1)');
+  const { heatIds, castDate, rows } = completeCurves(curves, shape);
+  if (rows.length < SUGGESTION_MIN_HEATS) return null;
+  let lims: Limits;
+  try {
+    lims = toleranceBand(rows, shape, targetShare, confidence);
+  } catch {
+    return null;
   }
-  const lims = limitsAt(lo);
+  let outOfSample: BandSuggestion['outOfSample'] = null;
+  if (rows.length >= OUT_OF_SAMPLE_MIN_HEATS) {
+    const cut = Math.ceil((2 * rows.length) / 3);
+    try {
+      const older = toleranceBand(rows.slice(0, cut), shape, targetShare, confidence);
+      outOfSample = { fittedOn: cut, checkedOn: rows.length - cut, heldShare: shareInside(rows.slice(cut), older), checkedFrom: castDate.get(heatIds[cut]) ?? '' };
+    } catch {
+      outOfSample = null;
+    }
+  }
+  let simulatedShare: number | null = null;
+  try {
+    simulatedShare = rows.length >= shape.points.length + 2 ? (simulatedInside(rows, lims)?.inside ?? null) : null;
+  } catch {
+    simulatedShare = null;
+  }
   return {
     targetShare,
-    heldShare: share(lims),
-    heatsCounted: heatIds.length,
+    confidence,
+    heldShare: shareInside(rows, lims),
+    heatsCounted: rows.length,
+    outOfSample,
+    simulatedShare,
+    method: `normal tolerance limits per distance (ISO 16269-6; Howe 1969 two-sided, Natrella 1963 one-sided), content ${(1 - (1 - targetShare) / shape.points.length).toFixed(4)} and confidence ${(1 - (1 - confidence) / shape.points.length).toFixed(4)} each (Bonferroni over ${shape.points.length} distances), rounded outwards to 0.1 HRC`,
     points: shape.points.map((p, j) => ({ distanceMm: p.mm, label: p.label ?? null, minHrc: lims[j].min, maxHrc: lims[j].max })),
   };
 }
 
 /** The trial on loaded curves (pure). */
-export function runBandTrial(curves: readonly HeatCurve[], proposed: Band, current: Band | null, options: { share?: number; mills?: string[] } = {}): Omit<BandTrialResult, 'grade' | 'window' | 'source'> {
+export function runBandTrial(curves: readonly HeatCurve[], proposed: Band, current: Band | null, options: { share?: number; confidence?: number; mills?: string[] } = {}): Omit<BandTrialResult, 'grade' | 'window' | 'source'> {
   const band = validateBand(proposed);
   const share = options.share ?? 0.95;
+  const confidence = options.confidence ?? 0.95;
   const chosen = options.mills?.length ? curves.filter((c) => options.mills!.includes(c.mill)) : curves;
   const mills = millsOf(chosen).map((mill) => {
     const own = curvesOfMill(chosen, mill);
-    return { mill, proposed: bandOutcome(own, band), current: current ? bandOutcome(own, current) : null, suggestion: suggestBand(own, band, share) };
+    return { mill, proposed: bandOutcome(own, band), current: current ? bandOutcome(own, current) : null, suggestion: suggestBand(own, band, share, confidence) };
   });
   return {
     proposed: bandSummary(band),
@@ -178,6 +285,8 @@ export interface BandTrialRequest {
   to?: string;
   source?: SeriesSource;
   share?: number;
+  /** Confidence that the suggested band holds the share (default 0.95). */
+  confidence?: number;
 }
 
 export async function bandTrial(db: Db, request: BandTrialRequest): Promise<BandTrialResult> {
@@ -198,5 +307,5 @@ export async function bandTrial(db: Db, request: BandTrialRequest): Promise<Band
   }
   const current = await bandOn(db, request.grade, request.to ?? todayIso());
   const curves = await loadSeriesCurves(db, { grade: request.grade, from: request.from, to: request.to, source });
-  return { grade: request.grade, window: { from: request.from ?? null, to: request.to ?? null }, source, ...runBandTrial(curves, proposed, current, { share: request.share, mills: request.mills }) };
+  return { grade: request.grade, window: { from: request.from ?? null, to: request.to ?? null }, source, ...runBandTrial(curves, proposed, current, { share: request.share, confidence: request.confidence, mills: request.mills }) };
 }

@@ -246,6 +246,18 @@ describe('band trial', () => {
       })).length;
       expect(held / own.length).toBeCloseTo(s.heldShare, 12);
       expect(s.heldShare).toBeGreaterThanOrEqual(0.95);
+      // Tolerance limits (ISO 16269-6) fitted on the older two thirds also hold the newer third.
+      expect(s.outOfSample!.fittedOn + s.outOfSample!.checkedOn).toBe(own.length);
+      // CORRAN's planted shift from heat 61 of 90 falls in the newer third: the out-of-sample check shows
+      // that a band fitted on the older heats would not have held; the stable mills hold it.
+      if (mill.mill === 'CORRAN') expect(s.outOfSample!.heldShare).toBeLessThan(0.8);
+      else expect(s.outOfSample!.heldShare).toBeGreaterThanOrEqual(0.9);
+      // Whole-curve expected share from the joint distribution, never a capped sum: a share in [0, 1]
+      // with bounds around it, near the observed share (these heats are drawn from a multivariate normal).
+      const e = mill.proposed.expectedShare!;
+      expect(e.lower).toBeLessThanOrEqual(e.share);
+      expect(e.upper).toBeGreaterThanOrEqual(e.share);
+      expect(Math.abs(e.share - mill.proposed.failingShare)).toBeLessThan(0.1);
     }
     expect(trial.total.proposed.failingCount).toBe(trial.mills.reduce((a, m) => a + m.proposed.failingCount, 0));
   });

@@ -155,6 +155,32 @@ fix["boxCox"] = [
     {"name": "lognormal(ln 8, 0.35), n = 120", "values": f(lognormal), "lsl": 2.0, "usl": 25.0, **boxcox_indices(lognormal, 2.0, 25.0)},
 ]
 
+# --- Exact normal tolerance factors (ISO 16269-6; Hahn & Meeker 1991) ---------------------------------
+from scipy import integrate
+
+
+def k1_exact(n, p, g):
+    return float(stats.nct.ppf(g, n - 1, stats.norm.ppf(p) * math.sqrt(n)) / math.sqrt(n))
+
+
+def k2_exact(n, p, g):
+    # Odeh & Owen: gamma = sqrt(2n/pi) * int_0^inf P(chi2_{n-1} > (n-1) r(x)^2 / k^2) exp(-n x^2 / 2) dx,
+    # r(x) solving Phi(x + r) - Phi(x - r) = p.
+    def r_of(x):
+        return optimize.brentq(lambda r: stats.norm.cdf(x + r) - stats.norm.cdf(x - r) - p, 0, 50)
+
+    def cover(k):
+        fn = lambda x: stats.chi2.sf((n - 1) * r_of(x) ** 2 / k ** 2, n - 1) * math.exp(-n * x * x / 2)
+        return math.sqrt(2 * n / math.pi) * integrate.quad(fn, 0, 10 / math.sqrt(n), limit=200, epsabs=1e-12)[0]
+
+    return float(optimize.brentq(lambda k: cover(k) - g, 0.5, 30, xtol=1e-12))
+
+
+fix["tolerance"] = [
+    {"n": n, "p": p, "gamma": g, "k1": k1_exact(n, p, g), "k2": k2_exact(n, p, g)}
+    for (n, p, g) in [(20, 0.95, 0.95), (50, 0.99, 0.95), (100, 0.9962, 0.9962), (30, 0.9, 0.9), (200, 0.999, 0.95)]
+]
+
 if __name__ == "__main__":
     with open(OUT, "w") as fh:
         json.dump(fix, fh, indent=1)

@@ -358,7 +358,7 @@ export function analysisRoutes(app: OpenAPIHono<AppEnv>, db: Db) {
       tags: ['analysis'],
       summary: 'Replay history under a proposed band',
       description:
-        'Per mill: heats that would have failed (listed), their share, Ppk and expected PPM per distance, beside the band in force; and the tightest band of the same shape each mill held for the chosen share of heats (default 0.95).',
+        'Per mill: heats that would have failed (listed), their share, Ppk and expected PPM per distance, and the expected share of curves outside the band from the joint (multivariate normal) distribution of the curve with simulation bounds, beside the band in force; and the tightest band of the same shape from normal tolerance limits (ISO 16269-6) holding the chosen share of curves (default 0.95) with the chosen confidence (default 0.95), checked out of sample on the newer third of the heats.',
       request: {
         body: {
           required: true,
@@ -379,7 +379,8 @@ export function analysisRoutes(app: OpenAPIHono<AppEnv>, db: Db) {
                   from: isoDate.optional(),
                   to: isoDate.optional(),
                   source,
-                  share: z.number().gt(0).max(1).optional(),
+                  share: z.number().gt(0).lt(1).optional(),
+                  confidence: z.number().gt(0).lt(1).optional().openapi({ description: 'Confidence that the suggested band holds the share (default 0.95).' }),
                 })
                 .openapi('BandTrialRequest'),
             },
@@ -402,6 +403,7 @@ export function analysisRoutes(app: OpenAPIHono<AppEnv>, db: Db) {
           to: b.to,
           source: b.source,
           share: b.share,
+          confidence: b.confidence,
         }),
       );
       return c.json(result, 200);

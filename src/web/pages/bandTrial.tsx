@@ -12,6 +12,8 @@ import { readSeriesChoice, type SeriesChoice } from '../data/seriesPicker.ts';
 import { page } from '../page.tsx';
 import { fmt, mmLabel, optionalNumber, ParamError } from '../params.ts';
 import { bandsSpec, failingShareSpec } from '../specs/bandTrial.ts';
+import { simulatedPercentText } from '../probabilityText.ts';
+import { clopperPearson } from '../../stats/binomialBounds.ts';
 
 export interface ProposedPoint {
   distanceMm: number;
@@ -109,11 +111,12 @@ function results(result: BandTrialResult, kit: Parameters<Parameters<typeof page
     currentFailing: m.current?.failingCount ?? null,
     currentShare: m.current?.failingShare ?? null,
     incomplete: m.proposed.incomplete,
-    ppmBound: m.proposed.expectedPpmUpperBound,
+    expected: m.proposed.expectedShare,
     held: m.suggestion?.heldShare ?? null,
+    heldLater: m.suggestion?.outOfSample?.heldShare ?? null,
   }));
   const t = result.total;
-  summary.push({ mill: 'all chosen', heats: t.proposed.heats, failing: t.proposed.failingCount, share: t.proposed.failingShare, currentFailing: t.current?.failingCount ?? null, currentShare: t.current?.failingShare ?? null, incomplete: t.proposed.incomplete, ppmBound: t.proposed.expectedPpmUpperBound, held: null });
+  summary.push({ mill: 'all chosen', heats: t.proposed.heats, failing: t.proposed.failingCount, share: t.proposed.failingShare, currentFailing: t.current?.failingCount ?? null, currentShare: t.current?.failingShare ?? null, incomplete: t.proposed.incomplete, expected: t.proposed.expectedShare, held: null, heldLater: null });
   const shareRows = result.mills.flatMap((m) => [
     ...(m.current ? [{ mill: m.mill, band: 'band in force', share: m.current.failingShare, failing: m.current.failingCount, heats: m.current.heats }] : []),
     { mill: m.mill, band: 'proposed band', share: m.proposed.failingShare, failing: m.proposed.failingCount, heats: m.proposed.heats },
@@ -123,7 +126,8 @@ function results(result: BandTrialResult, kit: Parameters<Parameters<typeof page
     ...result.proposed.points.map((p) => ({ band: 'proposed band', mm: p.distanceMm, label: p.label ?? mmLabel(p.distanceMm), min: p.minHrc, max: p.maxHrc })),
   ];
   const perDistance = result.mills.flatMap((m) => m.proposed.perDistance.map((d) => ({ mill: m.mill, distance: d.label ?? mmLabel(d.distanceMm), min: d.minHrc, max: d.maxHrc, n: d.n, ppk: d.ppk, expectedPpm: d.expectedPpm, failures: d.observedFailures })));
-  const suggestions = result.mills.flatMap((m) => (m.suggestion ? m.suggestion.points.map((p) => ({ mill: m.mill, distance: p.label ?? mmLabel(p.distanceMm), min: p.minHrc, max: p.maxHrc, held: m.suggestion!.heldShare, counted: m.suggestion!.heatsCounted })) : []));
+  const suggestions = result.mills.flatMap((m) => (m.suggestion ? m.suggestion.points.map((p) => ({ mill: m.mill, distance: p.label ?? mmLabel(p.distanceMm), min: p.minHrc, max: p.maxHrc, held: m.suggestion!.heldShare, later: m.suggestion!.outOfSample?.heldShare ?? null, counted: m.suggestion!.heatsCounted })) : []));
+  const suggestionMethod = result.mills.find((m) => m.suggestion)?.suggestion?.method ?? null;
   const failing = result.mills.flatMap((m) => m.proposed.failing.map((f) => ({ mill: m.mill, heatId: f.heatId, heat: f.heatNumber, castDate: f.castDate, missed: f.missed.map((x) => `${mmLabel(x.distanceMm)} ${x.hrc} HRC (${fmt(x.margin, 1)})`).join('; ') })));
   return (
     <section id="trial-results">
@@ -137,8 +141,10 @@ function results(result: BandTrialResult, kit: Parameters<Parameters<typeof page
           { key: 'currentFailing', label: 'Fail today', numeric: true },
           { key: 'currentShare', label: 'Share today', numeric: true, cell: (r: (typeof summary)[number]) => (r.currentShare === null ? '–' : `${fmt(100 * r.currentShare, 1)} %`) },
           { key: 'incomplete', label: 'Not fully tested', numeric: true },
-          { key: 'ppmBound', label: 'Expected PPM (upper bound)', numeric: true, digits: 0 },
+          { key: 'expected', label: 'Expected outside (whole curve)', htmlOnly: true, cell: (r: (typeof summary)[number]) => (r.expected ? simulatedPercentText(clopperPearson(Math.round(r.expected.share * r.expected.draws), r.expected.draws)) : '–') },
+          { key: 'expectedShare', label: 'Expected share outside', csvOnly: true, cell: (r: (typeof summary)[number]) => r.expected?.share ?? null },
           { key: 'held', label: 'Share inside suggested band', numeric: true, digits: 3 },
+          { key: 'heldLater', label: 'Same rule, newer third', numeric: true, digits: 3 },
         ],
         rows: summary,
       })}
@@ -170,11 +176,13 @@ function results(result: BandTrialResult, kit: Parameters<Parameters<typeof page
           { key: 'distance', label: 'Distance' },
           { key: 'min', label: 'Min HRC', numeric: true },
           { key: 'max', label: 'Max HRC', numeric: true },
-          { key: 'held', label: 'Share held', numeric: true, digits: 3 },
+          { key: 'held', label: 'Share held (in sample)', numeric: true, digits: 3 },
+          { key: 'later', label: 'Same rule on the older two thirds, share of the newer third held', numeric: true, digits: 3 },
           { key: 'counted', label: 'Heats counted', numeric: true },
         ],
         rows: suggestions,
       })}
+      {suggestionMethod ? <p class="note">Suggested band: {suggestionMethod}. It is a starting point for a talk with the mill, not a purchase specification; acceptance follows the agreed specification and qualified personnel.</p> : null}
       </details>
       <details class="more">
         <summary>Heats that would fail under the proposal ({failing.length})</summary>
