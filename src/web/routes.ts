@@ -15,12 +15,11 @@ import { chemistryPage } from './pages/chemistry.tsx';
 import { bandTrialPage } from './pages/bandTrial.tsx';
 import { signInPages } from './pages/signIn.tsx';
 import { receivingPage } from './pages/receiving.tsx';
-import { partToBandPage } from './pages/partToBand.tsx';
 
 /** Page paths that take form posts; they refuse a post from another origin (hono/csrf checks Origin). */
 export const FORM_PATHS = ['/alerts/*', '/trends/*', '/chemistry/*', '/band-trial/*', '/sign-in', '/sign-out'];
 /** Paths whose answers are compressed when the browser accepts it (pages are mostly repetitive markup). */
-export const PAGE_PATHS = ['/mills', '/heats', '/heats/*', '/grades/*', '/trends', '/capability', '/chemistry', '/band-trial', '/part-to-band', '/alerts', '/receiving', '/assets/*'];
+export const PAGE_PATHS = ['/mills', '/heats', '/heats/*', '/grades/*', '/trends', '/capability', '/chemistry', '/band-trial', '/alerts', '/receiving', '/assets/*'];
 
 export function webRoutes(app: Hono<any>, db: Db): void {
   for (const path of FORM_PATHS) app.use(path, csrf());
@@ -36,6 +35,5 @@ export function webRoutes(app: Hono<any>, db: Db): void {
   chemistryPage(app, db);
   bandTrialPage(app, db);
   receivingPage(app, db);
-  partToBandPage(app, db);
   signInPages(app, db);
 }

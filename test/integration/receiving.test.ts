@@ -95,4 +95,22 @@ describe(`receiving inspection on the demo plant (${process.env.TEST_DATABASE_UR
     const unbalanced = await t.request('POST', '/api/v1/gauge-studies', { readings: readings.slice(1) });
     expect(unbalanced.status).toBe(422);
   });
+
+  test('the Receiving page lists the plans and the lots due, shows the moved laboratory, and carries the caution', async () => {
+    const started = performance.now();
+    const res = await t.request('GET', '/receiving');
+    console.log(`GET /receiving took ${Math.round(performance.now() - started)} ms`);
+    expect(res.status).toBe(200);
+    const html = res.body as string;
+    expect(html).toContain('<h1>Receiving</h1>');
+    expect(html).toMatch(/Lots due for a re-test \(\d+\)/);
+    expect(html).toContain('QUELLMARK 18CrNiMo7-D: agreement with our laboratory');
+    expect(html).toMatch(/reads high since Q26-/);
+    expect(html).toContain('do not replace it');
+    const csv = await t.request('GET', '/receiving?grade=20MnCr5-D&mill=VARNHOLT&csv=plans');
+    expect(csv.status).toBe(200);
+    expect(String(csv.body).split('\n')[0]).toContain('Mill');
+    // A malformed date is answered on a page that says so (src/web/page.tsx turns ParamError into 422).
+    expect((await t.request('GET', '/receiving?asOf=2026-13-01')).status).toBe(422);
+  });
 });
