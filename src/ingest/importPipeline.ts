@@ -14,6 +14,7 @@ import {
 } from './certificateSchema.ts';
 import { prepareCertificate, prepareTestRecord, sha256, type FieldDifference } from './prepare.ts';
 import type { MillLayout } from './millLayout.ts';
+import { XlsxLimitError } from './xlsxReader.ts';
 
 export type ImportFormat = 'json' | 'csv' | 'xlsx';
 
@@ -63,6 +64,8 @@ export interface ImportReport {
   status: ImportStatus;
   /** The earlier import of the same bytes, when status is duplicate. */
   duplicateOf?: number;
+  /** The work limit the document passed, when it was refused for one (413 for sizes, 422 for counts). */
+  limit?: { name: string; value: number; status: 413 | 422 };
   summary: {
     items: number;
     valid: number;
@@ -109,10 +112,14 @@ export async function runImport(db: Db, request: ImportRequest): Promise<ImportR
   );
   const importId = archived.id;
 
+  // A mill-scoped caller hears only of its own mill's earlier imports: another mill's document is read
+  // and refused like any other, so the answer says nothing of what that mill sent.
   const [earlier] = rowsOf<{ id: number }>(
     await db.execute(sql`
       select id from imports where sha256 = ${digest} and id <> ${importId}
-        and status = 'accepted' order by id limit 1`),
+        and status = 'accepted'
+        ${options.onlyMill === undefined ? sql`` : sql`and options->>'onlyMill' = ${options.onlyMill}`}
+      order by id limit 1`),
   );
   if (earlier) {
     const report = emptyReport(importId, 'duplicate');
@@ -128,6 +135,7 @@ export async function runImport(db: Db, request: ImportRequest): Promise<ImportR
   } catch (error) {
     const report = emptyReport(importId, 'rejected');
     report.problems.push({ path: '', message: `the file could not be read: ${(error as Error).message}` });
+    if (error instanceof XlsxLimitError) report.limit = { name: error.limit, value: error.value, status: error.status };
     await finish(db, report);
     return report;
   }
@@ -363,7 +371,7 @@ function markNotWritten(report: ImportReport): void {
 
 async function finish(ex: Executor, report: ImportReport): Promise<void> {
   await ex.execute(sql`
-    update imports set status = ${report.status}, summary = ${JSON.stringify({ ...report.summary, duplicateOf: report.duplicateOf ?? null, problems: report.problems })}::jsonb,
+    update imports set status = ${report.status}, summary = ${JSON.stringify({ ...report.summary, duplicateOf: report.duplicateOf ?? null, limit: report.limit ?? null, problems: report.problems })}::jsonb,
       row_report = ${JSON.stringify(report.items)}::jsonb, finished_at = now()
     where id = ${report.importId}`);
 }

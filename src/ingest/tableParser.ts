@@ -42,7 +42,7 @@ import {
   type MillLayout,
 } from './millLayout.ts';
 import { heatKey } from './prepare.ts';
-import { readXlsx } from './xlsxReader.ts';
+import { readXlsx, XlsxLimitError } from './xlsxReader.ts';
 
 export interface TableParseOptions {
   format: 'csv' | 'xlsx';
@@ -713,7 +713,8 @@ export async function parseCertificateTable(bytes: Uint8Array, options: TablePar
         ? readCsv(bytes, { delimiter: layout?.delimiter, encoding: layout?.encoding })
         : await readXlsx(bytes, { sheet: layout?.sheet });
   } catch (error) {
-    if (error instanceof TableReadError) return { items: [], fileProblems: [fileProblem(error.message)], rowCount: 0, warnings };
+    // A workbook past a work limit is refused as a whole by the caller (HTTP 413/422 naming the limit).
+    if (error instanceof TableReadError && !(error instanceof XlsxLimitError)) return { items: [], fileProblems: [fileProblem(error.message)], rowCount: 0, warnings };
     throw error;
   }
   for (const note of table.notes) warnings.push({ path: '', message: note });

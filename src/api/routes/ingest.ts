@@ -19,6 +19,7 @@ const reportSchema = z
     importId: z.number().int(),
     status: z.enum(['accepted', 'partially_accepted', 'rejected', 'validated', 'duplicate']),
     duplicateOf: z.number().int().optional(),
+    limit: z.object({ name: z.string(), value: z.number(), status: z.number().int() }).optional(),
     summary: z.record(z.string(), z.number()),
     problems: z.array(z.object({ row: z.number().optional(), column: z.string().optional(), path: z.string(), message: z.string() })),
     items: z.array(z.record(z.string(), z.unknown())),
@@ -54,7 +55,7 @@ function refuseForeignMill(report: ImportReport) {
 }
 
 const statusOfReport = (report: ImportReport) =>
-  report.status === 'accepted' || report.status === 'partially_accepted' ? 201 : report.status === 'rejected' ? 422 : 200;
+  report.limit?.status ?? (report.status === 'accepted' || report.status === 'partially_accepted' ? 201 : report.status === 'rejected' ? 422 : 200);
 
 export function ingestRoutes(app: OpenAPIHono<AppEnv>, db: Db) {
   // The body is validated by the import pipeline (so that even an invalid certificate is archived and
@@ -131,8 +132,10 @@ export function ingestRoutes(app: OpenAPIHono<AppEnv>, db: Db) {
     },
     responses: {
       201: { description: 'Written (accepted or partially accepted)', content: { 'application/json': { schema: reportSchema } } },
-      200: { description: 'Validated only (dry run), or a duplicate of an earlier import', content: { 'application/json': { schema: reportSchema } } },
-      422: { description: 'Rejected: the report names every problem by row and column', content: { 'application/json': { schema: reportSchema } } },
+      200: { description: 'Validated only (dry run), or a duplicate of an earlier import (for a mill token: of an import of its own mill)', content: { 'application/json': { schema: reportSchema } } },
+      403: { description: 'The document holds data of a mill the caller may not send for (refused whole)', content: { 'application/json': { schema: errorBodySchema } } },
+      413: { description: 'The body, or an XLSX workbook, is past a size limit (the report names it in limit)', content: { 'application/json': { schema: reportSchema } } },
+      422: { description: 'Rejected: the report names every problem by row and column, or the XLSX work limit passed (limit)', content: { 'application/json': { schema: reportSchema } } },
     },
   });
   app.post('/api/v1/imports', async (c) => {

@@ -235,7 +235,7 @@ describe('xlsx size limits (zip bombs)', () => {
   });
 
   it('refuses a part that unpacks past the limit, and a file past the size limit', async () => {
-    await expect(readXlsx(padded, { maxPartBytes: 100_000 })).rejects.toThrow(/^the workbook entry xl\/worksheets\/sheet1\.xml unpacks to more than 0\.1 MB, which is refused/);
-    await expect(readXlsx(padded, { maxBytes: 1_000 })).rejects.toThrow(/^the workbook is 0\.0 MB, more than the 0\.0 MB accepted; split it or export the sheet as CSV$/);
+    await expect(readXlsx(padded, { maxPartBytes: 100_000 })).rejects.toThrow(/^the workbook entry xl\/worksheets\/sheet1\.xml unpacks to more than the 0\.1 MB accepted \(limit maxPartBytes\), which is refused/);
+    await expect(readXlsx(padded, { maxBytes: 1_000 })).rejects.toThrow(/^the workbook is 0\.0 MB, more than the 0\.0 MB accepted \(limit maxBytes\); split it or export the sheet as CSV$/);
   });
 });
