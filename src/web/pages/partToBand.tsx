@@ -104,7 +104,7 @@ function results(r: PartRequirementResult, kit: PageKit) {
     probability: m.prediction?.probability ?? null,
     chemistry: m.prediction ? `${m.prediction.chemistry}${m.prediction.heatsAveraged ? ` (${m.prediction.heatsAveraged})` : ''}; ${m.prediction.answeredBy}` : '–',
   }));
-  const rangeText = s.low === s.high ? `H = ${s.mid} in⁻¹` : `H ${s.low}–${s.high} in⁻¹ (${s.medium}, ${s.agitation} agitation; ${s.source})`;
+  const rangeText = s.low === s.high ? `H = ${s.mid} in⁻¹` : `H ${s.low}–${s.high} in⁻¹ (${s.medium}, ${s.agitation === 'none' ? 'no' : s.agitation} agitation; ${s.source})`;
   return (
     <section id="part-results">
       <h2>
@@ -166,11 +166,15 @@ function results(r: PartRequirementResult, kit: PageKit) {
           { key: 'interval', label: '95 % interval (Wilson)' },
           { key: 'interpolated', label: 'Read between distances', numeric: true },
           { key: 'predicted', label: 'Predicted HRC', numeric: true, digits: 1 },
-          { key: 'probability', label: 'Predicted probability', numeric: true, cell: (x: (typeof millRows)[number]) => (x.probability === null ? '–' : `${fmt(100 * x.probability, 1)} %`) },
+          { key: 'probability', label: 'Predicted probability (mean chemistry)', numeric: true, cell: (x: (typeof millRows)[number]) => (x.probability === null ? '–' : `${fmt(100 * x.probability, 1)} %`) },
           { key: 'chemistry', label: 'Prediction from', wrap: true },
         ],
         rows: millRows,
       })}
+      <p class="note">
+        Share met: the mill’s heats whose end-quench hardness at {r.bandMinimum?.label ?? 'the position'} was at least {r.input.requiredHrc} HRC (read between measured distances by monotone cubics where the position was not measured).
+        Predicted probability: for one heat of the mill’s mean chemistry, from the chemistry model or the published predictor; heats vary in chemistry, so the share of heats can differ from it.
+      </p>
     </section>
   );
 }
