@@ -16,6 +16,7 @@ import { capabilitySpec, controlChartSpec } from './vegaSpecs.ts';
 import { renderSvg } from './svgRender.ts';
 import { groupByHeat, loadSeriesCurves } from './seriesData.ts';
 import { millDataQuality, type MillDataQuality } from './millDataQuality.ts';
+import { receivingPlans, type ReceivingPlan } from './receivingPlan.ts';
 
 export const REPORT_CAUTION =
   'These statistics and predictions help decide where to look; they support, and do not replace, end-quench testing and acceptance to the purchase specification.';
@@ -37,6 +38,8 @@ export interface GradeSection {
   chartProblems: Array<{ distanceMm: number; problem: string }>;
   /** How the mill reports: even-reading preference and too-smooth curves (null with no curves). */
   reporting: MillDataQuality | null;
+  /** Laboratory agreement and the re-test plan as of the period's end (src/analysis/receivingPlan.ts). */
+  receiving?: ReceivingPlan | null;
 }
 
 export interface PeriodReport {
@@ -100,6 +103,7 @@ export async function buildPeriodReport(db: Db, request: ReportRequest): Promise
         section.chartProblems.push({ distanceMm: d.distanceMm, problem: (error as Error).message });
       }
     }
+    section.receiving = (await receivingPlans(db, { grade, mill: request.mill, asOf: request.to })).plans[0] ?? null;
     sections.push(section);
     const info = await findGrade(db, grade);
     const limits = info && info.chemistryLimits.length
@@ -169,6 +173,21 @@ export async function renderReportHtml(report: PeriodReport): Promise<string> {
       );
     }
   }
+  const received = report.grades.filter((g) => g.receiving);
+  if (received.length) {
+    parts.push('<h2>Receiving inspection: laboratory agreement and re-test plan</h2>');
+    parts.push('<table><tr><th class="l">Grade</th><th>Heats tested by both</th><th>Mill − plant (HRC)</th><th>95 % range</th><th>Limits of agreement</th><th class="l">Laboratory</th><th class="l">Re-test</th><th>Lots due</th><th class="l">Why</th></tr>');
+    for (const g of received) {
+      const p = g.receiving!;
+      const o = p.agreement.overall;
+      const chart = p.agreement.chart;
+      const lab = !chart ? 'too few pairs to chart' : chart.firstSignal ? `reads ${chart.firstSignal.side} since heat ${chart.firstSignal.heatNumber} (${chart.firstSignal.castDate})` : 'in agreement';
+      parts.push(
+        `<tr><td class="l">${esc(g.grade)}</td><td>${p.agreement.pairs}</td><td>${num(o?.bias)}</td><td>${o ? `${num(o.biasInterval.lower)} – ${num(o.biasInterval.upper)}` : '–'}</td><td>${o ? `${num(o.lowerLimit, 1)} to ${num(o.upperLimit, 1)}` : '–'}</td><td class="l">${esc(lab)}</td><td class="l">${p.decision.every === 1 ? 'every lot' : `1 lot in ${p.decision.every}`}</td><td>${p.due.length}</td><td class="l">${esc(p.decision.reasons.join(' '))}</td></tr>`,
+      );
+    }
+    parts.push('</table><p>Pairs are heats with both the mill’s certificate and our receiving test (Bland &amp; Altman 1986 on the mean difference per heat). The plan follows skip-lot rules after ISO 2859-3 and is a recommendation: it does not replace the receiving test or the purchase specification.</p>');
+  }
   parts.push('<h2>Alerts</h2>');
   if (report.alerts.length === 0) parts.push('<p>No alert raised in the period, and none open.</p>');
   else {
@@ -207,6 +226,11 @@ export function renderReportCsv(report: PeriodReport): string {
     for (const d of g.capability?.distances ?? []) {
       const r = d.result;
       rows.push(['capability', report.mill, g.grade, d.distanceMm, d.label, d.lsl, d.usl, d.n, r?.mean, r?.sigmaOverall, r?.ppk, r?.intervals.ppk.lower, r?.intervals.ppk.upper, r?.cpk, r?.expectedPpm.overall.total, r ? Math.round((r.observedPpm.total * r.n) / 1e6) : null, d.note ?? ppkWords(r?.ppk)]);
+    }
+    if (g.receiving) {
+      const p = g.receiving;
+      const o = p.agreement.overall;
+      rows.push(['receiving', report.mill, g.grade, null, null, o?.lowerLimit ?? null, o?.upperLimit ?? null, p.agreement.pairs, o?.bias ?? null, o?.sd ?? null, null, o?.biasInterval.lower ?? null, o?.biasInterval.upper ?? null, null, null, p.due.length, `columns here: lsl/usl = limits of agreement, mean = bias mill − plant, sd_overall = its SD, ppk_low95/high95 = the bias interval, observed_outside = lots due; plan ${p.decision.every === 1 ? 'every lot' : `1 lot in ${p.decision.every}`}: ${p.decision.reasons.join(' ')}`]);
     }
     for (const c of g.charts) for (const s of c.signals) rows.push(['chart_signal', report.mill, g.grade, c.distanceMm, c.label, null, null, s.points.length, null, null, null, null, null, null, null, null, `${s.description}: ${s.heats.join(' ')}`]);
   }

@@ -9,6 +9,7 @@ import { receivingAgreement } from '../../src/analysis/receivingAgreement.ts';
 import { receivingPlans } from '../../src/analysis/receivingPlan.ts';
 import { plantRepeatability } from '../../src/analysis/receivingRepeatability.ts';
 import { SCENARIO } from '../../seed/scenario.ts';
+import { buildPeriodReport, renderReportCsv, renderReportHtml } from '../../src/analysis/report.ts';
 import { createTestApp, type TestApp } from '../helpers/testApp.ts';
 
 let t: TestApp;
@@ -112,5 +113,15 @@ describe(`receiving inspection on the demo plant (${process.env.TEST_DATABASE_UR
     expect(String(csv.body).split('\n')[0]).toContain('Mill');
     // A malformed date is answered on a page that says so (src/web/page.tsx turns ParamError into 422).
     expect((await t.request('GET', '/receiving?asOf=2026-13-01')).status).toBe(422);
+  });
+
+  test('the supplier review report carries the agreement and the plan of each grade', async () => {
+    const story = summary.stories.labReadsHigh;
+    const report = await buildPeriodReport(t.database.db, { mill: story.mill, grade: story.grade, from: '2025-11-01', to: '2026-10-31' });
+    const html = await renderReportHtml(report);
+    expect(html).toContain('Receiving inspection: laboratory agreement and re-test plan');
+    expect(html).toMatch(/reads high since heat Q26-/);
+    const csv = renderReportCsv(report);
+    expect(csv.split('\n').filter((l) => l.startsWith('receiving,'))).toHaveLength(1);
   });
 });
