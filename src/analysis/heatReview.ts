@@ -19,6 +19,8 @@ import { bandOn, bandSummary, labelFor, type BandSummary } from './bandOf.ts';
 import { baselineReference, phaseOneReference, univariateChart, type ChartKind, type LimitsOrigin } from './controlCharts.ts';
 import { AnalysisError, notFound } from './errors.ts';
 import { alertChartParameters, monitoringSettingsFor } from './monitoringSettings.ts';
+import { curveSeries } from './curveSeries.ts';
+import { episodesOf } from './curveMonitor.ts';
 import { predictCurve, type CurvePrediction } from './prediction.ts';
 import { groupByHeat, loadSeriesCurves, pointsAt } from './seriesData.ts';
 
@@ -33,12 +35,26 @@ export interface ReviewedTest {
 }
 
 export interface HeatSignal {
-  kind: Exclude<ChartKind, 't2'>;
-  distanceMm: number;
+  /** 'curve': the curve-level scheme the drift alerts run (docs/monitoring.md); the others per distance. */
+  kind: Exclude<ChartKind, 't2'> | 'curve';
+  /** Null for a curve-level signal (the whole curve). */
+  distanceMm: number | null;
   label: string;
   rule: string;
   description: string;
-  limitsFrom: LimitsOrigin['type'];
+  limitsFrom: LimitsOrigin['type'] | 'first_heats';
+}
+
+/** The curve-level scheme at this heat (the one the drift alerts run). */
+export interface HeatCurveMonitoring {
+  status: 'monitoring' | 'collecting_reference' | 'refused' | 'in_reference' | 'incomplete_curve';
+  reason: string | null;
+  level: { ewma: number; limit: number; signal: 'high' | 'low' | null } | null;
+  shape: { t2: number; ucl: number; signal: boolean } | null;
+  /** The heat that began the signal episode this heat belongs to (it may be earlier). */
+  episodeFrom: string | null;
+  lag1Autocorrelation: number | null;
+  statements: string[];
 }
 
 export interface HeatReview {
@@ -50,6 +66,7 @@ export interface HeatReview {
   prediction: CurvePrediction | null;
   predictionProblem: string | null;
   signals: HeatSignal[];
+  curveMonitoring: HeatCurveMonitoring;
   notes: string[];
 }
 
@@ -164,6 +181,8 @@ export async function heatReview(db: Db, heatId: number): Promise<HeatReview> {
       }
     }
   }
+  const curveMonitoring = await curveAtHeat(db, heat, settings);
+  for (const sig of curveSignals(curveMonitoring)) signals.unshift(sig);
   if (tooShort) notes.push('the first heat of this mill and grade in two years: no chart to compare it with yet');
   if (distances.length === 0) notes.push('no band distances: chart signals not evaluated');
 
@@ -186,6 +205,45 @@ export async function heatReview(db: Db, heatId: number): Promise<HeatReview> {
     prediction,
     predictionProblem,
     signals,
+    curveMonitoring,
     notes,
+  };
+}
+
+const CURVE_WORDS = {
+  curve_level_high: 'the curve as a whole is harder than its reference (level EWMA beyond its designed limit)',
+  curve_level_low: 'the curve as a whole is softer than its reference (level EWMA beyond its designed limit)',
+  curve_shape: 'the shape of the curve differs from its reference (shape T² above its designed limit)',
+};
+
+function curveSignals(c: HeatCurveMonitoring): HeatSignal[] {
+  const out: HeatSignal[] = [];
+  const base = { kind: 'curve' as const, distanceMm: null, label: 'whole curve', limitsFrom: 'first_heats' as const };
+  if (c.level?.signal) {
+    const rule = c.level.signal === 'high' ? 'curve_level_high' : 'curve_level_low';
+    out.push({ ...base, rule, description: CURVE_WORDS[rule] });
+  }
+  if (c.shape?.signal) out.push({ ...base, rule: 'curve_shape', description: CURVE_WORDS.curve_shape });
+  return out;
+}
+
+async function curveAtHeat(db: Db, heat: HeatDetail, settings: Awaited<ReturnType<typeof monitoringSettingsFor>>): Promise<HeatCurveMonitoring> {
+  const series = await curveSeries(db, { grade: heat.grade, mill: heat.mill, source: 'mill_certificate' }, { settings });
+  const m = series.monitoring;
+  const base = { level: null, shape: null, episodeFrom: null, lag1Autocorrelation: m.reference ? m.reference.location.lag1 : null, statements: m.statements };
+  if (!settings.curve.enabled) return { ...base, status: 'refused', reason: 'the curve-level drift scheme is switched off for this grade' };
+  if (m.status !== 'monitoring') return { ...base, status: m.status, reason: m.reason };
+  if (m.referenceHeats.some((h) => h.heatId === heat.id)) return { ...base, status: 'in_reference', reason: 'this heat is part of the reference the series is judged against' };
+  const index = m.monitored.findIndex((h) => h.heatId === heat.id);
+  if (index < 0) return { ...base, status: 'incomplete_curve', reason: 'the certificate curve lacks a reading at one of the monitored distances, or was cast before the reference' };
+  const p = m.monitored[index].point;
+  const episode = episodesOf(m).find((e) => e.signals.includes(index));
+  return {
+    ...base,
+    status: 'monitoring',
+    reason: null,
+    level: { ewma: p.ewma, limit: p.limit, signal: p.level },
+    shape: p.t2 === null || p.t2Ucl === null ? null : { t2: p.t2, ucl: p.t2Ucl, signal: p.shape },
+    episodeFrom: episode ? m.monitored[episode.onset].heatNumber : null,
   };
 }

@@ -243,7 +243,10 @@ describe('heat review', () => {
     // The residual check states its family-wise thresholds (Sidak over the distances compared).
     const residuals = r.body.checks.find((c: { check: string }) => c.check === 'prediction_residuals');
     expect(residuals.threshold).toMatchObject({ method: 'sidak', warnAlpha: 0.05, failAlpha: 0.001, distances: residuals.values.rows.length });
-    expect(r.body.signals.some((s: { kind: string; rule: string }) => s.kind === 'cusum' && s.rule === 'cusum_upper')).toBe(true);
+    // The 5 HRC step (about 2 SD at every distance) shows as the curve-level signal the drift alerts run
+    // (docs/monitoring.md), against the frozen baseline window; the per-distance alert rules are off by default.
+    expect(r.body.curveMonitoring).toMatchObject({ status: 'monitoring', level: { signal: 'high' } });
+    expect(r.body.signals.some((s: { kind: string; rule: string }) => s.kind === 'curve' && s.rule === 'curve_level_high')).toBe(true);
     const anvilHeats = (await t.request('GET', '/api/v1/heats?mill=ANVIL&grade=8620H')).body.heats;
     const copied = anvilHeats.find((h: { heatNumber: string }) => h.heatNumber === 'A-9005');
     const review = await t.request('GET', `/api/v1/heats/${copied.id}/review`);

@@ -132,13 +132,21 @@ describe(`alert rules in the ingest transaction (${process.env.TEST_DATABASE_URL
     expect(raised.filter((a) => a.rule === 'copied_certificate').map((a) => a.heat?.heatNumber)).toEqual(['PAIR-9001']);
   });
 
-  test('a drift of 1.5 sigma raises one EWMA and one CUSUM alert for the series, also when it arrives a few heats per import', async () => {
+  // The per-distance EWMA and CUSUM rules are off by default (the curve-level scheme replaces them) and
+  // can be switched on per deployment: these tests switch them on.
+  const perDistance: AlertSettingsOverride = { ewma: { enabled: true }, cusum: { enabled: true } };
+
+  test('a drift of 1.5 sigma raises one EWMA and one CUSUM alert for the series (when switched on), also when it arrives a few heats per import', async () => {
     const draws = syntheticHistory({ seed: 15, mill: 'DRIFTMILL', count: 160, start: '2024-01-02', everyDays: 2, prefix: 'DRF', shift: { from: 100, hrc: () => 3 } });
-    await ingest(draws.certificates.slice(0, 100));
+    await ingest(draws.certificates.slice(0, 100), perDistance);
     // 5 heats per import: EWMA and CUSUM carry the history into each import's new points.
     const raised = await raisedBy('DRIFTMILL', async () => {
-      for (let i = 100; i < 160; i += 5) await ingest(draws.certificates.slice(i, i + 5));
+      for (let i = 100; i < 160; i += 5) await ingest(draws.certificates.slice(i, i + 5), perDistance);
     });
+    // The curve-level rule (on by default) finds the same drift as one upward level shift after it began.
+    const level = raised.filter((a) => a.rule === 'curve_level_shift');
+    expect(level.map((a) => a.causeKey.split(':mill:')[0])).toEqual(['curve_level_shift:high']);
+    expect(Number(level[0].heat!.heatNumber.slice(4))).toBeGreaterThan(100);
     // One alert per rule and side for the series, however many imports and distances saw the signal.
     const ewma = raised.filter((a) => a.rule === 'ewma_signal');
     const cusum = raised.filter((a) => a.rule === 'cusum_signal');
@@ -155,22 +163,24 @@ describe(`alert rules in the ingest transaction (${process.env.TEST_DATABASE_URL
 
   test('with a cause per distance the same drift gives one alert per distance that fired', async () => {
     const draws = syntheticHistory({ seed: 16, mill: 'PERDMILL', count: 140, start: '2024-01-02', everyDays: 2, prefix: 'PRD', shift: { from: 100, hrc: (j) => (j === 5 ? 4 : 0) } });
-    await ingest(draws.certificates.slice(0, 100), { causePerDistance: true });
-    const raised = await raisedBy('PERDMILL', () => ingest(draws.certificates.slice(100), { causePerDistance: true }));
+    await ingest(draws.certificates.slice(0, 100), { ...perDistance, causePerDistance: true });
+    const raised = await raisedBy('PERDMILL', () => ingest(draws.certificates.slice(100), { ...perDistance, causePerDistance: true }));
     const ewma = raised.filter((a) => a.rule === 'ewma_signal');
     expect(ewma.map((a) => a.distanceMm)).toContain(11);
     expect(new Set(ewma.map((a) => a.causeKey)).size).toBe(ewma.length);
     for (const a of ewma) expect(a.causeKey).toContain(`:mm:${a.distanceMm}:`);
   });
 
-  test('a curve unusual in shape raises a T² alert naming the distances that drive it', async () => {
+  test('a curve unusual in shape raises a T² alert (when switched on) naming the distances that drive it', async () => {
     const past = history('SHAPEMILL', 100, 17);
-    await ingest(past);
+    await ingest(past, { t2: { enabled: true } });
     // A typical curve with 5 mm raised 4 HRC and 7 mm lowered 4 HRC: each reading within ~2 sigma of
     // its own series, but the two distances move together in the model (AR(1), rho 0.6, and chemistry).
     const base = past[99].tests[0].readings.map((r) => r.hrc);
     const odd = base.map((v, j) => (j === 2 ? v + 4 : j === 3 ? v - 4 : v));
-    const raised = await raisedBy('SHAPEMILL', () => ingest([lot(past[99], 'SHP-9001', addDays(past[99].castDate, 2), odd)]));
+    const raised = await raisedBy('SHAPEMILL', () => ingest([lot(past[99], 'SHP-9001', addDays(past[99].castDate, 2), odd)], { t2: { enabled: true } }));
+    // The curve-level shape statistic (on by default) sees the same curve.
+    expect(raised.filter((a) => a.rule === 'curve_shape_change').map((a) => a.heat?.heatNumber)).toEqual(['SHP-9001']);
     expect(countOf(raised, 't2_signal')).toBe(1);
     const alert = raised.find((a) => a.rule === 't2_signal')!;
     expect(alert.heat?.heatNumber).toBe('SHP-9001');

@@ -6,6 +6,7 @@ import { certificateChecksRule } from './certificateChecks.ts';
 import { controlSignalsRule } from './controlSignals.ts';
 import { multivariateRule } from './multivariate.ts';
 import { capabilityDropRule } from './capabilityDrop.ts';
+import { curveDriftRule } from './curveDrift.ts';
 import { labAgreementRule } from './labAgreement.ts';
 import { DEFAULT_ALERT_SETTINGS, deploymentAlertSettings, type AlertRuleSettings } from './settings.ts';
 
@@ -13,7 +14,7 @@ export type IngestRule = (tx: Executor, written: ApplyResult) => Promise<void>;
 
 /** Every rule family with the given settings (the statistical rules share one load per ingest). */
 export function ingestRules(settings: AlertRuleSettings = DEFAULT_ALERT_SETTINGS): IngestRule[] {
-  return [outOfBandRule, certificateChecksRule(settings), controlSignalsRule(settings), multivariateRule(settings), capabilityDropRule(settings), labAgreementRule(settings)];
+  return [outOfBandRule, certificateChecksRule(settings), controlSignalsRule(settings), multivariateRule(settings), curveDriftRule(settings), capabilityDropRule(settings), labAgreementRule(settings)];
 }
 
 /** The rules of this deployment (defaults, or ENDQUENCH_ALERT_SETTINGS). */

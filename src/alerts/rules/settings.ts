@@ -11,6 +11,7 @@
 // gives the counts. ENDQUENCH_ALERT_SETTINGS (JSON, same shape as AlertSettingsOverride) overrides them.
 import type { NelsonRule } from '../../stats/nelsonRules.ts';
 import type { SeriesSource } from '../../db/series.ts';
+import type { CurveMonitorSettings } from '../../analysis/curveMonitor.ts';
 
 export interface ReferenceSettings {
   /** Phase I (no frozen baseline) uses at most this many heats just before the first new one. */
@@ -31,6 +32,11 @@ export interface AlertRuleSettings {
    * a cause per distance it would raise one alert per distance for one cause.
    */
   causePerDistance: boolean;
+  /**
+   * The curve-level drift scheme (src/analysis/curveMonitor.ts, src/stats/curveScheme.ts): one level and
+   * one shape statistic per series, limits designed for one false alarm per `yearsPerFalseAlarm`.
+   */
+  curve: CurveMonitorSettings;
   nelson: { enabled: boolean; rules: NelsonRule[] };
   ewma: { enabled: boolean; lambda: number; L: number };
   cusum: { enabled: boolean; k: number; h: number; headStart: number };
@@ -60,19 +66,39 @@ export const DEFAULT_ALERT_SETTINGS: AlertRuleSettings = Object.freeze({
   // than about 100 points give false-alarm rates well above nominal; 30 is our floor for trying at all.
   reference: { maxHeats: 100, minHeats: 30 },
   causePerDistance: false,
+  // One scheme per curve (docs/monitoring.md): EWMA (λ 0.1) of the mean standardised deviation and T² of
+  // the shape on up to 12 principal components; at most one false alarm per series in three years at the
+  // series' own heat rate (Woodall et al. 2004 for monitoring a profile by a few statistics; Lowry et
+  // al. 1992). The reference is the first 100 complete curves (Quesenberry 1993 on ~100 points for
+  // individuals limits), widened so 90 % of references meet the target (Gandy & Kvaløy 2013); below 30
+  // no limits at all. |lag-1 autocorrelation| >= 0.2 of the reference level: AR(1) residuals charted.
+  curve: {
+    enabled: true,
+    lambda: 0.1,
+    yearsPerFalseAlarm: 3,
+    heatsPerYear: null,
+    referenceHeats: 100,
+    minReferenceHeats: 30,
+    guarantee: 0.9,
+    locationShare: 0.5,
+    shapeComponents: 12,
+    autocorrelationThreshold: 0.2,
+  },
   // Nelson (1984) rules 1, 2, 3 and 5 when enabled: a point beyond 3 sigma, nine in a row on one side, a
   // trend of six, two of three beyond 2 sigma (the zone rules 6-8 and rule 4 stay on the Trends page).
   nelson: { enabled: false, rules: [1, 2, 3, 5] },
   // Lucas & Saccucci (1990, Technometrics 32:1-12) tabulate lambda 0.1, L = 2.814: ARL0 500, one-sigma
   // shift found in 10.3. lambda 0.05 with L = 3.5 gives ARL0 about 6,460 and 16.7 for a one-sigma shift
   // (Lucas & Saccucci's Markov chain, computed by ewmaArl in src/stats/runLength.ts).
-  ewma: { enabled: true, lambda: 0.05, L: 3.5 },
+  // Per-distance EWMA, CUSUM and T² alerts are off by default: about 15 charts per curve multiply the
+  // false alarms (the curve scheme above replaces them); the pages still draw them as explanation.
+  ewma: { enabled: false, lambda: 0.05, L: 3.5 },
   // Page (1954) / Lucas & Crosier (1982): k = 0.5 tuned to a one-sigma shift. h = 5 gives a two-sided
   // ARL0 of 465 (Montgomery §9.1); h = 8 gives a two-sided ARL0 of about 9,480 and 16.4 for a one-sigma
   // shift (Brook & Evans 1972 Markov chain, computed by cusumArl in src/stats/runLength.ts).
-  cusum: { enabled: true, k: 0.5, h: 8, headStart: 0 },
+  cusum: { enabled: false, k: 0.5, h: 8, headStart: 0 },
   // Hotelling T² on the curve; one series per mill x grade, alpha per point (Tracy, Young & Mason 1992).
-  t2: { enabled: true, alpha: 0.001 },
+  t2: { enabled: false, alpha: 0.001 },
   certificate: {
     // Curves rounded to whole (or even) HRC that follow chemistry closely repeat by chance of rounding;
     // ten element values all equal by chance are far rarer.
@@ -116,6 +142,7 @@ export function alertSettings(override: AlertSettingsOverride = {}): AlertRuleSe
     sources: override.sources ?? [...d.sources],
     historyDays: override.historyDays ?? d.historyDays,
     causePerDistance: override.causePerDistance ?? d.causePerDistance,
+    curve: { ...d.curve, ...override.curve },
     reference: { ...d.reference, ...override.reference },
     nelson: { ...d.nelson, ...override.nelson },
     ewma: { ...d.ewma, ...override.ewma },
@@ -135,6 +162,16 @@ export function alertSettings(override: AlertSettingsOverride = {}): AlertRuleSe
   if (!(s.historyDays >= 1)) fail('historyDays must be at least 1');
   if (!(Number.isInteger(s.reference.minHeats) && s.reference.minHeats >= 10)) fail('reference.minHeats must be an integer of at least 10');
   if (!(s.reference.maxHeats >= s.reference.minHeats)) fail('reference.maxHeats must not be below reference.minHeats');
+  const c = s.curve;
+  if (!(c.lambda > 0 && c.lambda <= 1)) fail('curve.lambda must be in (0, 1]');
+  if (!(c.yearsPerFalseAlarm > 0)) fail('curve.yearsPerFalseAlarm must be positive');
+  if (c.heatsPerYear !== null && !(c.heatsPerYear >= 1)) fail('curve.heatsPerYear must be at least 1, or null for the series\' own rate');
+  if (!(Number.isInteger(c.minReferenceHeats) && c.minReferenceHeats >= 20)) fail('curve.minReferenceHeats must be an integer of at least 20');
+  if (!(Number.isInteger(c.referenceHeats) && c.referenceHeats >= c.minReferenceHeats)) fail('curve.referenceHeats must be an integer not below curve.minReferenceHeats');
+  if (!(c.guarantee >= 0.5 && c.guarantee < 1)) fail('curve.guarantee must be in [0.5, 1)');
+  if (!(c.locationShare > 0 && c.locationShare <= 1)) fail('curve.locationShare must be in (0, 1]');
+  if (!(Number.isInteger(c.shapeComponents) && c.shapeComponents >= 1 && c.shapeComponents <= 30)) fail('curve.shapeComponents must be an integer from 1 to 30');
+  if (!(c.autocorrelationThreshold > 0 && c.autocorrelationThreshold <= 1)) fail('curve.autocorrelationThreshold must be in (0, 1]');
   if (!(s.ewma.lambda > 0 && s.ewma.lambda <= 1)) fail('ewma.lambda must be in (0, 1]');
   if (!(s.ewma.L > 0)) fail('ewma.L must be positive');
   if (!(s.cusum.k >= 0 && s.cusum.h > 0 && s.cusum.headStart >= 0 && s.cusum.headStart < s.cusum.h)) fail('cusum needs k >= 0, h > 0 and 0 <= headStart < h');

@@ -214,8 +214,17 @@ export async function heatSheet(db: Db, heat: HeatDetail, kit: PageKit): Promise
 
       <h2>Chart signals on the mill's series at this heat</h2>
       <p class="note">
-        From the mill's certificate curves over the two years up to this heat. A CUSUM or EWMA signal stays on from where a drift began until the
-        series comes back, so it may have started at an earlier heat: the Trends page shows where.
+        The whole curve is judged as the drift alerts judge it: a level statistic (is the curve as a whole harder or softer than its reference?) and a
+        shape statistic, with limits designed for a stated false-alarm rate. A level signal stays on from where a drift began until the series comes
+        back, so it may have started at an earlier heat: the Trends page shows where. A signal supports, and does not replace, the receiving test.
+      </p>
+      <p id="curve-monitoring">
+        {review.curveMonitoring.status === 'monitoring'
+          ? `At this heat: level ${review.curveMonitoring.level ? `${review.curveMonitoring.level.ewma.toFixed(2)} against ±${review.curveMonitoring.level.limit.toFixed(2)}` : '–'}` +
+            (review.curveMonitoring.shape ? `, shape T² ${review.curveMonitoring.shape.t2.toFixed(1)} against ${review.curveMonitoring.shape.ucl.toFixed(1)}` : '') +
+            (review.curveMonitoring.episodeFrom ? `; the signal episode began at heat ${review.curveMonitoring.episodeFrom}.` : '.')
+          : `Curve-level monitoring: ${review.curveMonitoring.reason ?? review.curveMonitoring.status}.`}{' '}
+        {review.curveMonitoring.statements.join(' ')}
       </p>
       {kit.table('signals', `Chart signals of ${heat.heatNumber}`, {
         columns: [
