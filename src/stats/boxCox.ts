@@ -72,7 +72,7 @@ export function boxCoxFit(values: readonly number[]): BoxCoxFit {
   const mean = y.reduce((s, v) => s + v, 0) / y.length;
   const sd = Math.sqrt(y.reduce((s, v) => s + (v - mean) ** 2, 0) / (y.length - 1));
   if (!(sd > 0)) throw new StatsInputError('a Box–Cox fit needs values with some spread');
-  return { lambda, atBound: Math.abs(lambda - a) < 1e-6 || Math.abs(lambda - b) < 1e-6, mean, sd };
+  return { lambda, atBound: Math.abs(lambda - a) < 1e-3 || Math.abs(lambda - b) < 1e-3, mean, sd };
 }
 
 export interface FittedIndices {

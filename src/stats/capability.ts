@@ -30,8 +30,10 @@
 // readings on a grid coarse against σ (e.g. whole HRC) by a chi-square test on the grouped readings,
 // otherwise Anderson–Darling (D'Agostino & Stephens 1986); `normality` keeps the Anderson–Darling
 // result for reference, `normalityJudgement` says which test decided.
-// When normality is rejected at normalityAlpha (options.fitted 'auto'; the default is 'never'), a Box–Cox distribution is fitted
-// and the indices worked out from its quantiles (ISO 22514-2 distribution methods; src/stats/boxCox.ts),
+// When normality is rejected at normalityAlpha (options.fitted 'auto'; the default is 'never'), a Box–Cox
+// distribution is fitted (src/stats/boxCox.ts), or a Johnson curve by percentiles (Slifker & Shapiro
+// 1980; src/stats/johnson.ts) when the Box–Cox λ runs to the end of its range or the values are not all
+// positive, and the indices worked out from its quantiles (ISO 22514-2 distribution methods),
 // with percentile-bootstrap intervals for its Ppk and expected PPM (Efron & Tibshirani 1993;
 // src/stats/bootstrap.ts, seeded). A mixture of mills or a drifting process is not a skewed
 // distribution: the stability flag and the supply view speak to those.
@@ -51,6 +53,7 @@ import { StatsInputError, assertFinite, quantileSorted } from './descriptive.ts'
 import { andersonDarling, type AndersonDarlingResult } from './andersonDarling.ts';
 import { judgeNormality, type NormalityJudgement } from './groupedNormality.ts';
 import { boxCoxFit, boxCoxIndices, type FittedIndices } from './boxCox.ts';
+import { johnsonFit, johnsonIndices, type JohnsonFit } from './johnson.ts';
 import { bootstrapPercentile, type BootstrapInterval } from './bootstrap.ts';
 import { individualsChart } from './individualsChart.ts';
 import { c4 } from './shewhartConstants.ts';
@@ -185,9 +188,14 @@ export interface PercentileIndices {
 
 /** Indices from a fitted (Box–Cox) distribution, with bootstrap intervals. */
 export interface FittedCapability extends FittedIndices {
-  method: 'box-cox';
-  lambda: number;
-  lambdaAtBound: boolean;
+  /** Box–Cox (ML λ), or Johnson (Slifker & Shapiro percentiles) when Box–Cox cannot describe the shape. */
+  method: 'box-cox' | 'johnson';
+  /** Box–Cox λ; null for Johnson. */
+  lambda: number | null;
+  /** Johnson parameters (family SU/SB/SL, γ, η, ε, λ); null for Box–Cox. */
+  johnson: JohnsonFit | null;
+  /** Why this distribution (e.g. Box–Cox λ at its bound, so Johnson). */
+  choice: string;
   intervals: { ppk: BootstrapInterval | null; expectedPpm: BootstrapInterval | null };
 }
 
@@ -274,6 +282,45 @@ function indices(mu: number, sigma: number, lsl: number | null, usl: number | nu
   const p = usl !== null && lsl !== null ? (usl - lsl) / (6 * sigma) : null;
   const k = u === null ? (l as number) : l === null ? u : Math.min(u, l);
   return { p, u, l, k };
+}
+
+/**
+ * A fitted distribution for skewed data: Box–Cox when the values are positive and its λ is inside its
+ * range, else Johnson by percentiles (Slifker & Shapiro 1980), which has a location and handles readings
+ * far from zero with a small coefficient of variation (where Box–Cox needs an extreme λ). Bootstrap
+ * intervals refit the same family on each resample. Null when neither fits.
+ */
+function fitDistribution(values: readonly number[], lsl: number | null, usl: number | null, boot: { replicates: number; seed?: number; confidence: number }): FittedCapability | null {
+  let choice = '';
+  if (values.every((x) => x > 0)) {
+    try {
+      const fit = boxCoxFit(values);
+      if (!fit.atBound) {
+        const idx = boxCoxIndices(fit, lsl, usl);
+        const [ppk, ppm] = bootstrapPercentile(values, (s) => {
+          const b = boxCoxIndices(boxCoxFit(s), lsl, usl);
+          return [b.ppk, b.expectedPpm];
+        }, boot);
+        return { method: 'box-cox', lambda: fit.lambda, johnson: null, choice: 'Box–Cox, maximum-likelihood λ', ...idx, intervals: { ppk: ppk ?? null, expectedPpm: ppm ?? null } };
+      }
+      choice = `Box–Cox λ at the end of its range (${fit.lambda.toFixed(2)}), so Johnson by percentiles`;
+    } catch {
+      choice = 'no Box–Cox fit, so Johnson by percentiles';
+    }
+  } else choice = 'values not all positive (no Box–Cox), so Johnson by percentiles';
+  try {
+    const fit = johnsonFit(values);
+    const idx = johnsonIndices(fit, lsl, usl);
+    const [ppk, ppm] = bootstrapPercentile(values, (s) => {
+      const f = johnsonFit(s);
+      if (f.family !== fit.family) return null;
+      const j = johnsonIndices(f, lsl, usl);
+      return [j.ppk, j.expectedPpm];
+    }, boot);
+    return { method: 'johnson', lambda: null, johnson: fit, choice: `${choice} (${fit.family})`, ...idx, intervals: { ppk: ppk ?? null, expectedPpm: ppm ?? null } };
+  } catch {
+    return null;
+  }
 }
 
 function intervalMethod(withinMethod: CapabilityResult['withinMethod'], choice: IntervalDfChoice, effectiveDf: number, n: number): IntervalMethod {
@@ -405,22 +452,8 @@ export function capability(data: CapabilityData, band: SpecBand, options: Capabi
 
   const fittedMode = options.fitted ?? 'never';
   let fitted: FittedCapability | null = null;
-  if (n >= 3 && (fittedMode === 'always' || (fittedMode === 'auto' && nonNormal)) && values.every((x) => x > 0)) {
-    try {
-      const fit = boxCoxFit(values);
-      const idx = boxCoxIndices(fit, lsl, usl);
-      const [ppkIv, ppmIv] = bootstrapPercentile(
-        values,
-        (sample) => {
-          const b = boxCoxIndices(boxCoxFit(sample), lsl, usl);
-          return [b.ppk, b.expectedPpm];
-        },
-        bootOptions,
-      );
-      fitted = { method: 'box-cox', lambda: fit.lambda, lambdaAtBound: fit.atBound, ...idx, intervals: { ppk: ppkIv ?? null, expectedPpm: ppmIv ?? null } };
-    } catch {
-      fitted = null;
-    }
+  if (n >= 10 && (fittedMode === 'always' || (fittedMode === 'auto' && nonNormal))) {
+    fitted = fitDistribution(values, lsl, usl, bootOptions);
   }
 
   const percentileIndices = (s: ArrayLike<number>) => {

@@ -8,6 +8,7 @@ import { boxCoxFit, boxCoxIndices, boxCoxLogLikelihood } from '../../src/stats/b
 import { andersonDarling } from '../../src/stats/andersonDarling.ts';
 import { capability } from '../../src/stats/capability.ts';
 import { oneSidedToleranceFactor, twoSidedToleranceFactor } from '../../src/stats/toleranceLimits.ts';
+import { johnsonFromQuantiles, johnsonIndices, johnsonTransform } from '../../src/stats/johnson.ts';
 import { supplyNonconforming } from '../../src/stats/supplyNonconforming.ts';
 import { simulatedPercentText, simulatedProbabilityText } from '../../src/web/probabilityText.ts';
 
@@ -111,5 +112,33 @@ describe('normal tolerance factors against the exact ones (scipy nct.ppf one-sid
   }
   it('Howe (1969) two-sided factor for n = 20, 95 % content, 95 % confidence: 2.752 (value from memory; the exact 2.760 is the scipy fixture above)', () => {
     expect(twoSidedToleranceFactor(20, 0.95, 0.95)).toBeCloseTo(2.752, 3);
+  });
+});
+
+describe('Johnson fit by percentiles (Slifker & Shapiro 1980) against scipy.stats.johnsonsu / johnsonsb', () => {
+  for (const j of fix.johnson as Array<{ family: string; gamma: number; eta: number; epsilon: number; lambda: number; quantiles: { xm3: number; xm1: number; x1: number; x3: number }; lsl: number; usl: number; x00135: number; x50: number; x99865: number; expectedPpm: number }>) {
+    it(`${j.family} γ = ${j.gamma}, η = ${j.eta}: the four population quantiles give back the parameters, the tails and the PPM`, () => {
+      const fit = johnsonFromQuantiles(j.quantiles, 0.524);
+      expect(fit.family).toBe(j.family);
+      for (const [k, v] of [['gamma', j.gamma], ['eta', j.eta], ['epsilon', j.epsilon], ['lambda', j.lambda]] as const) {
+        expect(Math.abs((fit[k] as number) - v)).toBeLessThan(1e-8 * Math.max(1, Math.abs(v)));
+      }
+      // The defining property: the four quantiles map onto −3z, −z, z, 3z.
+      expect(johnsonTransform(fit, j.quantiles.x3)).toBeCloseTo(3 * 0.524, 9);
+      const idx = johnsonIndices(fit, j.lsl, j.usl);
+      expect(Math.abs(idx.x00135 - j.x00135)).toBeLessThan(1e-7);
+      expect(Math.abs(idx.x50 - j.x50)).toBeLessThan(1e-7);
+      expect(Math.abs(idx.x99865 - j.x99865)).toBeLessThan(1e-7);
+      expect(Math.abs(idx.expectedPpm / j.expectedPpm - 1)).toBeLessThan(1e-6);
+    });
+  }
+  it('whole-HRC readings far from zero with skew (28 + Gamma(2, 2), scipy fixture): Box–Cox needs an extreme λ, so the capability result fits Johnson', () => {
+    const skewed = fix.grouped[1].values as number[];
+    const r = capability({ values: skewed }, { lsl: 27, usl: 45 }, { fitted: 'auto' });
+    expect(r.flags.nonNormal).toBe(true);
+    expect(r.fitted!.method).toBe('johnson');
+    expect(r.fitted!.choice).toMatch(/Box–Cox λ at the end of its range/);
+    expect(r.fitted!.intervals.ppk!.lower).toBeLessThanOrEqual(r.fitted!.ppk);
+    expect(r.fitted!.intervals.ppk!.upper).toBeGreaterThanOrEqual(r.fitted!.ppk);
   });
 });

@@ -181,6 +181,21 @@ fix["tolerance"] = [
     for (n, p, g) in [(20, 0.95, 0.95), (50, 0.99, 0.95), (100, 0.9962, 0.9962), (30, 0.9, 0.9), (200, 0.999, 0.95)]
 ]
 
+# --- Johnson SU / SB population quantiles (scipy.stats.johnsonsu / johnsonsb) -------------------------
+# scipy's form: z = a + b*asinh((x - loc)/scale) (SU), z = a + b*ln(u/(1 - u)), u = (x - loc)/scale (SB).
+zj = 0.524
+johnson = []
+for fam, dist, a, b, loc, scale in [("SU", stats.johnsonsu, -0.8, 1.6, 30.0, 2.5), ("SU", stats.johnsonsu, 0.5, 2.2, 36.0, 4.0), ("SB", stats.johnsonsb, 0.7, 1.3, 24.0, 20.0), ("SB", stats.johnsonsb, -0.4, 0.9, 20.0, 30.0)]:
+    qs = {k: float(dist.ppf(stats.norm.cdf(m * zj), a, b, loc=loc, scale=scale)) for k, m in [("xm3", -3), ("xm1", -1), ("x1", 1), ("x3", 3)]}
+    lsl, usl = loc + 0.1 * scale, loc + 0.8 * scale
+    if fam == "SU":
+        lsl, usl = float(dist.ppf(0.0005, a, b, loc=loc, scale=scale)), float(dist.ppf(0.999, a, b, loc=loc, scale=scale))
+    johnson.append({"family": fam, "gamma": a, "eta": b, "epsilon": loc, "lambda": scale, "quantiles": qs,
+                    "lsl": lsl, "usl": usl,
+                    "x00135": float(dist.ppf(0.00135, a, b, loc=loc, scale=scale)), "x50": float(dist.ppf(0.5, a, b, loc=loc, scale=scale)), "x99865": float(dist.ppf(0.99865, a, b, loc=loc, scale=scale)),
+                    "expectedPpm": float(1e6 * (dist.cdf(lsl, a, b, loc=loc, scale=scale) + dist.sf(usl, a, b, loc=loc, scale=scale)))})
+fix["johnson"] = johnson
+
 if __name__ == "__main__":
     with open(OUT, "w") as fh:
         json.dump(fix, fh, indent=1)

@@ -27,7 +27,7 @@ export function flagSentences(r: CapabilityResult, _values: readonly number[] = 
     if (r.fitted) {
       const iv = r.fitted.intervals.ppk;
       out.push(
-        `A fitted Box–Cox distribution (λ = ${fmt(r.fitted.lambda, 2)}${r.fitted.lambdaAtBound ? ', at the end of its range: the shape is not well described' : ''}) gives Ppk ${fmt(r.fitted.ppk)}${iv ? ` (95% bootstrap interval ${fmt(iv.lower)} – ${fmt(iv.upper)})` : ''} and ${fmt(r.fitted.expectedPpm, 0)} PPM expected outside (ISO 22514-2 distribution method). A mixture of mills or a drift is not skew: check the per-mill figures and the trend first.`,
+        `A fitted ${r.fitted.method === 'box-cox' ? `Box–Cox distribution (λ = ${fmt(r.fitted.lambda, 2)})` : `Johnson ${r.fitted.johnson?.family} curve (${r.fitted.choice})`} gives Ppk ${fmt(r.fitted.ppk)}${iv ? ` (95% bootstrap interval ${fmt(iv.lower)} – ${fmt(iv.upper)})` : ''} and ${fmt(r.fitted.expectedPpm, 0)} PPM expected outside (ISO 22514-2 distribution method). A mixture of mills or a drift is not skew: check the per-mill figures and the trend first.`,
       );
     }
     if (r.percentile && r.percentile.interval) {
@@ -150,7 +150,7 @@ const INDEX_COLUMNS = [
   { key: 'ppkLower', label: 'Ppk 95% low', csvOnly: true },
   { key: 'ppkUpper', label: 'Ppk 95% high', csvOnly: true },
   { key: 'percentilePpk', label: 'Ppk (percentile)', numeric: true, digits: 2 },
-  { key: 'fittedPpk', label: 'Ppk (Box–Cox fit)', numeric: true, digits: 2 },
+  { key: 'fittedPpk', label: 'Ppk (fitted distribution)', numeric: true, digits: 2 },
   { key: 'expectedPpm', label: 'Expected PPM', numeric: true, digits: 0 },
   { key: 'observedPpm', label: 'Observed PPM', numeric: true, digits: 0 },
   { key: 'adP', label: 'Normality p', numeric: true, digits: 3 },
