@@ -8,7 +8,7 @@ import { curvesSpec } from '../../../src/web/specs/curves.ts';
 import { chemistrySpec } from '../../../src/web/specs/chemistry.ts';
 import { alertCountSpec } from '../../../src/web/specs/alerts.ts';
 import { bandVersionsSpec } from '../../../src/web/specs/bandVersions.ts';
-import { binWidth, histogramBins, histogramSpec, probabilityPlotSpec, probabilityPoints, readingStep } from '../../../src/web/specs/capability.ts';
+import { binWidth, histogramBins, histogramSpec, pagePpkSpec, probabilityPlotSpec, probabilityPoints, readingStep } from '../../../src/web/specs/capability.ts';
 import { coefficientSpec, comparisonSpec, fittedVsReportedSpec, residualsByDateSpec } from '../../../src/web/specs/chemistryModel.ts';
 import { bandsSpec, failingShareSpec } from '../../../src/web/specs/bandTrial.ts';
 import { shortRule } from '../../../src/web/specs/controlChart.ts';
@@ -44,6 +44,22 @@ const SPECS: Array<[string, object]> = [
   ['comparison', comparisonSpec([{ distance: '5 mm', mm: 5, which: 'published predictor', rmse: 1.2 }])],
   ['failing share', failingShareSpec([{ mill: 'A', band: 'proposed band', share: 0.1, failing: 3, heats: 30 }])],
   ['bands', bandsSpec([{ band: 'proposed band', mm: 1.5, label: 'J1', min: 40, max: 47 }])],
+  [
+    'Ppk by distance, several mills side by side',
+    pagePpkSpec({
+      grade: 'G',
+      mill: null,
+      distances: [
+        {
+          distanceMm: 5,
+          label: '5 mm',
+          n: 30,
+          result: null,
+          supply: { mills: ['A', 'B'].map((mill, i) => ({ mill, n: 15, weight: 0.5, cpk: 1 + i, ppk: 1 + i, cpkInterval: { lower: 0.8, upper: 1.2 }, ppkInterval: { lower: 0.8 + i, upper: 1.2 + i }, expectedPpm: 10, expectedPpmInterval: { lower: 1, upper: 30 }, observedPpm: 0 })) },
+        },
+      ],
+    } as never),
+  ],
 ];
 
 describe('chart specifications', () => {
