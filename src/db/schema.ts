@@ -338,6 +338,24 @@ export const baselines = pgTable(
   ],
 );
 
+/** Versioned monitoring configuration of a grade (the drift scheme's settings); the newest version is in force. */
+export const monitoringConfigs = pgTable(
+  'monitoring_configs',
+  {
+    id: serial('id').primaryKey(),
+    gradeId: integer('grade_id')
+      .notNull()
+      .references(() => grades.id),
+    version: integer('version').notNull(),
+    /** Overrides of the deployment's alert settings (the shape of AlertSettingsOverride). */
+    settings: jsonb('settings').notNull(),
+    reason: text('reason').notNull(),
+    createdBy: text('created_by'),
+    createdAt: createdAt(),
+  },
+  (t) => [uniqueIndex('monitoring_configs_grade_version').on(t.gradeId, t.version)],
+);
+
 export const alerts = pgTable(
   'alerts',
   {
