@@ -25,9 +25,14 @@ export interface PairedBiasChart extends EwmaChart {
   arlAtShift: { oneSigma: number; twoSigma: number };
 }
 
-/** EWMA chart of paired biases with the ARLs of its width. */
+const arlMemo = new Map<string, PairedBiasChart['arlAtShift']>();
+
+/** EWMA chart of paired biases with the ARLs of its width (memoised per λ and L: each is a chain solve). */
 export function pairedBiasChart(values: readonly number[], options: PairedBiasChartOptions): PairedBiasChart {
   const { lambda, L } = options;
   const chart = ewmaChart(values, { target: options.target, sigma: options.sigma, lambda, L });
-  return { ...chart, arlAtShift: { oneSigma: ewmaArl({ lambda, L, shift: 1 }), twoSigma: ewmaArl({ lambda, L, shift: 2 }) } };
+  const key = `${lambda}/${L}`;
+  let arlAtShift = arlMemo.get(key);
+  if (!arlAtShift) arlMemo.set(key, (arlAtShift = { oneSigma: ewmaArl({ lambda, L, shift: 1 }), twoSigma: ewmaArl({ lambda, L, shift: 2 }) }));
+  return { ...chart, arlAtShift };
 }
