@@ -3,7 +3,8 @@
 // grade are the deployment's (defaults, or ENDQUENCH_ALERT_SETTINGS) overridden by the grade's newest
 // stored monitoring configuration (src/db/monitoringConfig.ts), when one is on file.
 import type { Db, Executor } from '../db/connection.ts';
-import { deploymentAlertSettings, type AlertRuleSettings } from '../alerts/rules/settings.ts';
+import { alertSettings, deploymentAlertSettings, type AlertRuleSettings, type AlertSettingsOverride } from '../alerts/rules/settings.ts';
+import { currentMonitoringConfig } from '../db/monitoringConfig.ts';
 import type { ChartKind, ChartParameters } from './controlCharts.ts';
 
 let deployment: AlertRuleSettings | null = null;
@@ -13,18 +14,13 @@ export function deploymentSettings(): AlertRuleSettings {
   return (deployment ??= deploymentAlertSettings());
 }
 
-export type SettingsLookup = (db: Db | Executor, grade: string) => Promise<AlertRuleSettings>;
-
-let lookup: SettingsLookup = async () => deploymentSettings();
-
-/** Installs the per-grade lookup (the stored configuration); called once at start-up by the db module. */
-export function setMonitoringSettingsLookup(fn: SettingsLookup): void {
-  lookup = fn;
-}
-
-/** The settings in force for a grade. */
-export function monitoringSettingsFor(db: Db | Executor, grade: string): Promise<AlertRuleSettings> {
-  return lookup(db, grade);
+/**
+ * The settings in force for a grade: `base` (the deployment's by default) with the grade's newest stored
+ * monitoring configuration applied, when one is on file.
+ */
+export async function monitoringSettingsFor(db: Db | Executor, grade: string, base: AlertRuleSettings = deploymentSettings()): Promise<AlertRuleSettings> {
+  const stored = await currentMonitoringConfig(db, grade);
+  return stored ? alertSettings(stored.settings as AlertSettingsOverride, base) : base;
 }
 
 /**

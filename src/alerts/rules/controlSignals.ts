@@ -26,6 +26,7 @@ import { distancesOf, matchDistance, pointsAt, type SeriesPoint } from '../../an
 import { NELSON_RULE_DESCRIPTIONS, type NelsonRule } from '../../stats/nelsonRules.ts';
 import type { Band } from '../../hardenability/bands.ts';
 import { DEFAULT_ALERT_SETTINGS, type AlertRuleSettings } from './settings.ts';
+import { monitoringSettingsFor } from '../../analysis/monitoringSettings.ts';
 import {
   bandOnDate,
   baselineAt,
@@ -188,7 +189,8 @@ function alertOf(group: SeriesGroup, source: SeriesSource, fs: Firing[], perDist
 }
 
 /** The control-signal rule with the given settings. */
-export function controlSignalsRule(settings: AlertRuleSettings = DEFAULT_ALERT_SETTINGS) {
+export function controlSignalsRule(base: AlertRuleSettings = DEFAULT_ALERT_SETTINGS) {
+  const plan = (settings: AlertRuleSettings) => {
   const kinds = [
     ...(settings.nelson.enabled && settings.nelson.rules.length ? (['individuals'] as const) : []),
     ...(settings.ewma.enabled ? (['ewma'] as const) : []),
@@ -201,10 +203,15 @@ export function controlSignalsRule(settings: AlertRuleSettings = DEFAULT_ALERT_S
     h: settings.cusum.h,
     headStart: settings.cusum.headStart,
   };
+  return { kinds, params };
+  };
   return async function controlSignals(tx: Executor, written: ApplyResult): Promise<void> {
-    if (kinds.length === 0) return;
-    const scope = await ingestScope(tx, written, settings.historyDays);
+    const scope = await ingestScope(tx, written, base.historyDays);
     for (const group of scope.groups) {
+      // The grade's stored monitoring configuration over the base settings (the pages use the same).
+      const settings = await monitoringSettingsFor(tx, group.grade, base);
+      const { kinds, params } = plan(settings);
+      if (kinds.length === 0) continue;
       const band = bandOnDate(group.bands, newestNewCastDate(group));
       const distances = chartDistances(group, band);
       for (const source of settings.sources) {

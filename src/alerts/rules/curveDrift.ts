@@ -26,6 +26,7 @@ import { explainLevel, explainShape } from '../../analysis/curveExplain.ts';
 import { DEFAULT_ALERT_SETTINGS, type AlertRuleSettings } from './settings.ts';
 import { ingestScope, lotOf, newHeatsOfSource, type SeriesGroup } from './ingestScope.ts';
 import { loadCurves } from '../../db/series.ts';
+import { monitoringSettingsFor } from '../../analysis/monitoringSettings.ts';
 
 export const CURVE_LEVEL_RULE = 'curve_level_shift';
 export const CURVE_SHAPE_RULE = 'curve_shape_change';
@@ -91,15 +92,17 @@ function alertOf(group: SeriesGroup, source: SeriesSource, series: CurveSeries, 
 /** The curve-level drift rule with the given settings. */
 export function curveDriftRule(settings: AlertRuleSettings = DEFAULT_ALERT_SETTINGS) {
   return async function curveDrift(tx: Executor, written: ApplyResult): Promise<void> {
-    if (!settings.curve.enabled) return;
     const scope = await ingestScope(tx, written, settings.historyDays);
     for (const group of scope.groups) {
-      for (const source of settings.sources) {
+      // The grade's stored monitoring configuration over these settings (the pages use the same).
+      const own = await monitoringSettingsFor(tx, group.grade, settings);
+      if (!own.curve.enabled) continue;
+      for (const source of own.sources) {
         const fresh = newHeatsOfSource(group, source);
         if (fresh.size === 0) continue;
         // The whole series (not the history window of the scope): the statistic at a heat depends on every heat since the reference.
         const curves = await loadCurves(tx, { grade: group.grade, mill: group.mill, source });
-        const series = curveSeriesOf(curves, { grade: group.grade, mill: group.mill, source }, group.bands, group.baselines.get(source) ?? [], settings);
+        const series = curveSeriesOf(curves, { grade: group.grade, mill: group.mill, source }, group.bands, group.baselines.get(source) ?? [], own);
         if (series.monitoring.status !== 'monitoring') continue;
         for (const finding of findingsOf(series.monitoring, (id) => fresh.has(id))) {
           await raiseAlert(tx, alertOf(group, source, series, finding, fresh.size));

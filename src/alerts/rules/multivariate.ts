@@ -21,6 +21,7 @@ import { groupByHeat } from '../../analysis/seriesData.ts';
 import { fQuantile } from '../../stats/distributions.ts';
 import type { Band } from '../../hardenability/bands.ts';
 import { DEFAULT_ALERT_SETTINGS, type AlertRuleSettings } from './settings.ts';
+import { monitoringSettingsFor } from '../../analysis/monitoringSettings.ts';
 import { bandOnDate, chartWindow, curvesOfSource, ingestScope, lotOf, newHeatsOfSource, type SeriesGroup } from './ingestScope.ts';
 import { chartDistances, newestNewCastDate } from './controlSignals.ts';
 
@@ -93,11 +94,13 @@ async function referenceOf(
 }
 
 /** The T² rule with the given settings. */
-export function multivariateRule(settings: AlertRuleSettings = DEFAULT_ALERT_SETTINGS) {
+export function multivariateRule(base: AlertRuleSettings = DEFAULT_ALERT_SETTINGS) {
   return async function multivariate(tx: Executor, written: ApplyResult): Promise<void> {
-    if (!settings.t2.enabled) return;
-    const scope = await ingestScope(tx, written, settings.historyDays);
+    const scope = await ingestScope(tx, written, base.historyDays);
     for (const group of scope.groups) {
+      // The grade's stored monitoring configuration over the base settings (the pages use the same).
+      const settings = await monitoringSettingsFor(tx, group.grade, base);
+      if (!settings.t2.enabled) continue;
       const band = bandOnDate(group.bands, newestNewCastDate(group));
       const distances = chartDistances(group, band);
       const p = distances.length;

@@ -135,9 +135,13 @@ export function deploymentAlertSettings(env: Record<string, string | undefined> 
   return alertSettings(parsed as AlertSettingsOverride);
 }
 
-/** Defaults with the given parts replaced; checks the values a rule would choke on. */
-export function alertSettings(override: AlertSettingsOverride = {}): AlertRuleSettings {
-  const d = DEFAULT_ALERT_SETTINGS;
+/** The parts of the settings a grade's stored monitoring configuration may change (src/db/monitoringConfig.ts). */
+export const GRADE_CONFIGURABLE = ['curve', 'nelson', 'ewma', 'cusum', 't2'] as const;
+export type GradeMonitoringOverride = Pick<AlertSettingsOverride, (typeof GRADE_CONFIGURABLE)[number]>;
+
+/** Defaults (or the given base) with the given parts replaced; checks the values a rule would choke on. */
+export function alertSettings(override: AlertSettingsOverride = {}, base: AlertRuleSettings = DEFAULT_ALERT_SETTINGS): AlertRuleSettings {
+  const d = base;
   const s: AlertRuleSettings = {
     sources: override.sources ?? [...d.sources],
     historyDays: override.historyDays ?? d.historyDays,
