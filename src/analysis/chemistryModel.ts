@@ -1,7 +1,7 @@
 // The plant's own chemistry-to-hardness model: per distance, an OLS regression of HRC on chemistry (and
 // grain size), by Householder QR (src/stats/ols.ts; Montgomery, Peck & Vining §§3.3–3.5), with seeded
 // k-fold cross-validated RMSE (Stone 1974; Hastie, Tibshirani & Friedman §7.10). Beside it, the
-// published predictor (ASTM A255 calculation, else Just 1969) is scored on exactly the same heats, with
+// published predictor (A255 quenched end, Just 1969 from 4/16 in; publishedPredictor.ts) is scored on exactly the same heats, with
 // the plant model's out-of-fold predictions on those heats, so the comparison is like for like. The
 // residual correlation between distances (Pearson, heats measured at every model distance) is kept for
 // the probability of meeting a whole band.

@@ -9,7 +9,7 @@
 //    predictive SDs and R the residual correlation between distances, by seeded Monte Carlo (xoshiro128**
 //    with Box–Muller normals, src/stats/random.ts) through the Cholesky factor; the Monte Carlo standard
 //    error √(p(1 − p)/N) is given. The normal stands in for the t here (ν is large for any usable model).
-//  - Published predictor (ASTM A255 calculation, else Just 1969) when the grade has no plant model,
+//  - Published predictor (A255 quenched end, Just 1969 from 4/16 in; publishedPredictor.ts) when the grade has no plant model,
 //    bias-corrected on the grade's own history at each distance: with e_i = observed − published over the
 //    n heats there (n >= 5), centre = published + ē and predictive SD s·√(1 + 1/n), s the sample SD of
 //    the e_i (n − 1); interval centre ± t(1 − α/2, n − 1)·s·√(1 + 1/n) and band probabilities from the t on

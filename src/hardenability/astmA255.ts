@@ -8,9 +8,13 @@
 //   hardness polynomial IH(C), and distance hardness DH = IH / DF(DI, distance).
 // - Dividing factors: the 5th-order polynomials in DI (mm) for 3..50 mm given with the metric form
 //   of the method (transcribed from a secondary copy; not checked against the printed standard).
-//   They behave (DF >= 1, rising with distance) only for DI about 25-55 mm: DI is clamped to that
-//   range and the clamp is flagged. Between tabulated distances DF is interpolated by Fritsch &
-//   Carlson (1980) monotone cubics; DF = 1 at 1.5 mm (the quenched-end reading equals IH).
+//   They behave (DF >= 1, rising with distance) only for DI about 25-55 mm, and even there they are not
+//   trustworthy beyond the quenched end: on mid-range chemistry of EN 10084 16MnCr5+H (DI 39 mm) they
+//   put 9 mm 3 HRC under the band minimum, where measured curves sit mid-band. So they are offered
+//   only inside 25-55 mm, never clamped (outside, the distances are omitted with the reason), and the
+//   published predictor (src/analysis/publishedPredictor.ts) does not use them: it takes from A255
+//   the ideal diameter and the quenched-end hardness (DF = 1 at J1, i.e. IH) only. Between tabulated
+//   distances DF is interpolated by Fritsch & Carlson (1980) monotone cubics.
 // - Grain size other than 7: base (carbon) DI multiplied by 1.08^(7 - G), i.e. about 8 % higher
 //   per number coarser, read from Grossmann's carbon/grain-size chart (medium confidence).
 // - Boron steels: A255 needs a separate boron factor (not implemented): flagged outside the method.
@@ -177,25 +181,27 @@ export const DF_DISTANCE_RANGE_MM = { min: 1.5, max: 50 } as const;
 const poly = (c: readonly number[], x: number): number => c.reduceRight((acc, ci) => acc * x + ci, 0);
 
 export interface DividingFactors {
-  /** DI actually used (clamped into DF_DI_RANGE_MM). */
-  diUsedMm: number;
-  clamped: boolean;
+  diMm: number;
   /** DF at 1.5 mm (= 1) and at the tabulated distances. */
   knots: { mm: number; df: number }[];
   /** DF at a distance in 1.5..50 mm (monotone cubic between knots), or null outside. */
   at(mm: number): number | null;
 }
 
-/** Dividing factors for a DI (mm), clamped to the range where the polynomials behave. */
+/** Dividing factors for a DI (mm) inside DF_DI_RANGE_MM; outside it the polynomials do not apply (thrown). */
 export function a255DividingFactors(diMm: number): DividingFactors {
   if (!Number.isFinite(diMm) || diMm <= 0) throw new HardenabilityInputError(`DI ${diMm} mm is not positive`);
-  const diUsedMm = Math.min(Math.max(diMm, DF_DI_RANGE_MM.min), DF_DI_RANGE_MM.max);
-  const knots = [{ mm: 1.5, df: 1 }, ...DF_POLYNOMIALS.map(([mm, c]) => ({ mm, df: Math.max(1, poly(c, diUsedMm)) }))];
+  if (diMm < DF_DI_RANGE_MM.min || diMm > DF_DI_RANGE_MM.max) {
+    throw new OutsideMethodError(
+      `DI ${diMm.toFixed(1)} mm is outside ${DF_DI_RANGE_MM.min}-${DF_DI_RANGE_MM.max} mm, the only range where the dividing-factor polynomials behave`,
+    );
+  }
+  const knots = [{ mm: 1.5, df: 1 }, ...DF_POLYNOMIALS.map(([mm, c]) => ({ mm, df: Math.max(1, poly(c, diMm)) }))];
   const f = monotoneCubic(
     knots.map((k) => k.mm),
     knots.map((k) => k.df),
   );
-  return { diUsedMm, clamped: diUsedMm !== diMm, knots, at: (mm) => f.at(mm) };
+  return { diMm, knots, at: (mm) => f.at(mm) };
 }
 
 export interface A255CurveOptions extends A255Options {
@@ -206,34 +212,45 @@ export interface A255CurveOptions extends A255Options {
 export interface A255Curve extends PredictedCurve {
   initialHardnessHrc: number;
   factors: Record<A255Element, number>;
-  dividingFactorDiMm: number;
 }
 
-/** The A255 calculated end-quench curve at the requested distances (mm). */
+/** Distances counted as the quenched end: J1 (1.5875 mm) and ISO 642's 1.5 mm are the same position. */
+export const QUENCHED_END_MAX_MM = 1.6;
+
+/**
+ * The A255 calculated end-quench curve at the requested distances (mm): IH at the quenched end, IH/DF
+ * beyond it where the dividing-factor polynomials apply (DI 25-55 mm); other distances are omitted with
+ * the reason, never extrapolated or clamped.
+ */
 export function predictA255Curve(chem: Chemistry, options: A255CurveOptions): A255Curve {
   const distances = requestedDistances(options.distancesMm);
   const di = a255IdealDiameter(chem, options);
   const ih = initialHardness(chem.C as number);
-  const dfs = a255DividingFactors(di.mm);
   const warnings = [...di.warnings];
   const outOfRange = [...di.outOfRange];
-  if (dfs.clamped) {
-    outOfRange.push({
-      quantity: 'DI (mm) for dividing factors',
-      value: di.mm,
-      ...DF_DI_RANGE_MM,
-      note: `dividing factors evaluated at DI = ${dfs.diUsedMm} mm, the nearest value where the polynomials behave; the far end of the curve is unreliable`,
-    });
+  let dfs: DividingFactors | null = null;
+  let noFactors = '';
+  try {
+    dfs = a255DividingFactors(di.mm);
+  } catch (error) {
+    if (!(error instanceof OutsideMethodError)) throw error;
+    noFactors = error.message;
   }
   const raw: { mm: number; hrc: number }[] = [];
   const omitted: { mm: number; reason: string }[] = [];
   for (const mm of distances) {
-    const df = dfs.at(mm);
-    if (df === null) omitted.push({ mm, reason: `outside the ${DF_DISTANCE_RANGE_MM.min}-${DF_DISTANCE_RANGE_MM.max} mm covered by the dividing factors` });
+    if (mm <= QUENCHED_END_MAX_MM) {
+      raw.push({ mm, hrc: ih });
+      continue;
+    }
+    const df = dfs?.at(mm) ?? null;
+    if (dfs === null) omitted.push({ mm, reason: noFactors });
+    else if (df === null) omitted.push({ mm, reason: `outside the ${DF_DISTANCE_RANGE_MM.min}-${DF_DISTANCE_RANGE_MM.max} mm covered by the dividing factors` });
     else raw.push({ mm, hrc: ih / df });
   }
   const { points, adjusted } = monotoneCurve(raw);
   if (adjusted) warnings.push('curve made non-increasing by isotonic regression (PAVA)');
+  if (dfs) warnings.push('dividing factors from a secondary polynomial set, not checked against the printed standard');
   return {
     method: 'ASTM A255 calculated hardenability',
     source: A255_SOURCE,
@@ -245,6 +262,5 @@ export function predictA255Curve(chem: Chemistry, options: A255CurveOptions): A2
     outsideMethod: di.outsideMethod,
     initialHardnessHrc: ih,
     factors: di.factors,
-    dividingFactorDiMm: dfs.diUsedMm,
   };
 }

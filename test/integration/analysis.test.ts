@@ -13,7 +13,6 @@ import { publishedAt, publishedCurve } from '../../src/analysis/publishedPredict
 import type { HeatCurve } from '../../src/db/series.ts';
 import { readFileSync } from 'node:fs';
 import { loadSeriesCurves, pointsAt } from '../../src/analysis/seriesData.ts';
-import { predictA255Curve } from '../../src/hardenability/astmA255.ts';
 import { normalCdf } from '../../src/stats/distributions.ts';
 import { createRng } from '../../src/stats/random.ts';
 import { BAND_8620H, DISTANCES_MM, drawHeat, importCertificates, syntheticHistory, TRUE_SLOPES, TRUE_SIGMA } from '../fixtures/analysisHistory.ts';
@@ -275,11 +274,18 @@ describe('chemistry model and prediction', () => {
     const curves = await loadSeriesCurves(db.db, { grade: '8620H', from: '2021-01-01', to: '2021-12-31' });
     const heats = new Map(curves.map((c) => [c.heatId, c]));
     for (const fit of model.fits.distances) {
-      expect(fit.comparison.heatIds).toEqual(fit.heatIds);
-      // Recomputed here from the ASTM A255 calculation (the published predictor at these distances).
+      // The published predictor answers at the quenched end and from 4/16 in (6.35 mm) on; between them it
+      // has no value, so no heat is compared there.
+      const answers = fit.distanceMm <= 1.6 || fit.distanceMm >= 6.35;
+      expect(fit.comparison.heatIds).toEqual(answers ? fit.heatIds : []);
+      if (!answers) {
+        expect(fit.comparison.firstReason).toMatch(/6\.35 mm/);
+        continue;
+      }
+      // Recomputed here from the published predictor, one heat at a time.
       const errors = fit.comparison.heatIds.map((id) => {
         const h = heats.get(id)!;
-        const published = predictA255Curve(h.chemistry, { distancesMm: [fit.distanceMm], grainSize: h.grainSize! }).points[0].hrc;
+        const published = publishedAt(publishedCurve(h.chemistry, h.grainSize, [fit.distanceMm]), fit.distanceMm)!.hrc;
         return h.readings.get(fit.distanceMm)! - published;
       });
       expect(fit.comparison.publishedRmse).toBeCloseTo(Math.sqrt(errors.reduce((s, e) => s + e * e, 0) / errors.length), 10);
@@ -320,7 +326,7 @@ describe('chemistry model and prediction', () => {
   });
 
   test('the published predictor is bias-corrected on the history: centre published + mean error, width t·s·√(1 + 1/n)', () => {
-    // Synthetic history: 10 heats whose error (observed − published) at 5 and 9 mm is exactly 3 + 2·u_i,
+    // Synthetic history: 10 heats whose error (observed − published) at 7 and 9 mm is exactly 3 + 2·u_i,
     // u standardised to mean 0 and sample SD 1, so the bias is +3 and the sample SD (n − 1) is 2.
     const rng = createRng(31);
     const n = 10;
@@ -328,7 +334,7 @@ describe('chemistry model and prediction', () => {
     const mu = raw.reduce((a, b) => a + b, 0) / n;
     const sdRaw = Math.sqrt(raw.reduce((a, b) => a + (b - mu) ** 2, 0) / (n - 1));
     const u = raw.map((x) => (x - mu) / sdRaw);
-    const distances = [5, 9];
+    const distances = [7, 9];
     const history: HeatCurve[] = u.map((ui, i) => {
       const heat = drawHeat(rng);
       const pub = publishedCurve(heat.x, heat.x.grainSize, distances);
@@ -339,8 +345,8 @@ describe('chemistry model and prediction', () => {
       };
     });
     const errors = publishedErrors(history, distances);
-    expect(errors.get(5)!.bias).toBeCloseTo(3, 10);
-    expect(errors.get(5)!.sd).toBeCloseTo(2, 10);
+    expect(errors.get(7)!.bias).toBeCloseTo(3, 10);
+    expect(errors.get(7)!.sd).toBeCloseTo(2, 10);
     const input = drawHeat(rng).x;
     const published = publishedCurve(input, input.grainSize, distances);
     const band = { grade: 'G', version: 1, effectiveFrom: '2020-01-01', status: 'active' as const, kind: 'standard' as const, points: [{ mm: 9, minHrc: publishedAt(published, 9)!.hrc + 3 }] };

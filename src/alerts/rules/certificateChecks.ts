@@ -10,7 +10,7 @@
 //    the curve predicted from the heat's chemistry exceeds `prediction.failZ` in absolute value at
 //    `prediction.minDistances` or more distances (checkAgainstPrediction). The prediction is the newest
 //    plant model of the mill (else of the grade) with its predictive SD (Montgomery, Peck & Vining §3.5);
-//    without one, the published predictor (ASTM A255, else Just 1969) corrected by its mean error on the
+//    without one, the published predictor (A255 quenched end, Just 1969 from 4/16 in) corrected by its mean error on the
 //    series' own history, with the SD of that error (at least `reference.minHeats` heats per distance,
 //    up to `reference.maxHeats` heats before the first new one).
 import type { Executor } from '../../db/connection.ts';
@@ -195,7 +195,7 @@ function inconsistentAlert(
   const by =
     predictor.type === 'plant_model'
       ? { type: predictor.type, modelId: predictor.model.id, version: predictor.model.version, mill: predictor.model.mill, trainedFrom: predictor.model.trainedFrom, trainedTo: predictor.model.trainedTo }
-      : { type: predictor.type, method: 'ASTM A255 calculation, else Just (1969), corrected by its mean error on the series', historyHeats: predictor.historyHeats };
+      : { type: predictor.type, method: 'published predictor (ASTM A255 quenched end, Just (1969) from 4/16 in, capped at IH(C)), corrected by its mean error on the series', historyHeats: predictor.historyHeats };
   return {
     rule: INCONSISTENT_RULE,
     severity: 'warning',

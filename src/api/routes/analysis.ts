@@ -239,7 +239,7 @@ export function analysisRoutes(app: OpenAPIHono<AppEnv>, db: Db) {
       tags: ['analysis'],
       summary: 'Fit and store a chemistry-to-hardness model (next version)',
       description:
-        'Per distance: OLS coefficients with SE and p, R², RMSE, 5-fold cross-validated RMSE (seeded), and the published predictor (ASTM A255 calculation, else Just 1969) scored on the same heats beside the model’s cross-validated error there. Also the residual correlation between distances.',
+        'Per distance: OLS coefficients with SE and p, R², RMSE, 5-fold cross-validated RMSE (seeded), and the published predictor (ASTM A255 quenched end, Just 1969 from 4/16 in, capped at the martensite hardness) scored on the same heats beside the model’s cross-validated error there. Also the residual correlation between distances.',
       request: {
         body: {
           required: true,

@@ -130,14 +130,16 @@ describe('ASTM A255 calculation', () => {
     expect(() => a255IdealDiameter(ex4118, { boronTreated: true, strict: true })).toThrow(/boron/);
   });
 
-  it('dividing factors: 1 at 1.5 mm, rising with distance, DI clamped to 25-55 mm with a flag', () => {
+  it('dividing factors: 1 at 1.5 mm, rising with distance, only for DI 25-55 mm (never clamped)', () => {
     const df = a255DividingFactors(45);
     expect(df.at(1.5)).toBe(1);
     expect(df.at(60)).toBeNull();
     for (let i = 1; i < df.knots.length; i++) expect(df.knots[i].df).toBeGreaterThanOrEqual(df.knots[i - 1].df);
-    expect(a255DividingFactors(80)).toMatchObject({ diUsedMm: 55, clamped: true });
+    expect(() => a255DividingFactors(80)).toThrow(/outside 25-55 mm/);
+    // A deep-hardening chemistry (DI about 200 mm): IH at the quenched end, every other distance omitted with the reason.
     const c = predictA255Curve({ C: 0.4, Mn: 1.2, Si: 0.3, Cr: 1.2, Mo: 0.4, Ni: 1.0 }, { distancesMm: ISO });
-    expect(c.outOfRange.map((f) => f.quantity)).toContain('DI (mm) for dividing factors');
+    expect(c.points.map((p) => p.mm)).toEqual([1.5]);
+    expect(c.omitted.every((o) => /outside 25-55 mm/.test(o.reason))).toBe(true);
   });
 
   it('gives the curve at the requested distances, J1 = IH, omitting distances beyond 50 mm', () => {
@@ -213,15 +215,11 @@ describe('predictors against published bands (sanity check, mid-range chemistry)
     expect(misses(predictJust1969(mid8620, { distancesMm: ISO }), H8620).every((m) => m === 0)).toBe(true);
   });
 
-  it('20MnCr5+H mid chemistry: Just inside; A255 below the minimum by up to about 3.5 HRC at 9-25 mm (DI clamped), reported', () => {
+  it('20MnCr5+H mid chemistry: Just inside; A255 gives only the quenched end (DI 57.5 mm, outside its dividing factors)', () => {
     expect(misses(predictJust1969(mid20MnCr5, { distancesMm: ISO }), MnCr5).every((m) => m === 0)).toBe(true);
     const a = predictA255Curve(mid20MnCr5, { distancesMm: ISO });
-    const m = misses(a, MnCr5);
-    // Honest finding: the A255 curve with polynomial dividing factors falls short of this band.
-    expect(m.slice(0, 4).every((v) => v === 0)).toBe(true);
-    expect(Math.min(...m)).toBeLessThan(-1);
-    expect(Math.min(...m)).toBeGreaterThan(-3.5);
-    expect(a.outOfRange.map((f) => f.quantity)).toContain('DI (mm) for dividing factors');
+    expect(a.points.map((p) => p.mm)).toEqual([1.5]);
+    expect(misses(a, MnCr5)).toEqual([0]);
   });
 });
 
