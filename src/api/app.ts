@@ -6,13 +6,14 @@ import { HTTPException } from 'hono/http-exception';
 import { ZodError } from 'zod';
 import { ping, type Database } from '../db/connection.ts';
 import type { Logger } from '../logger.ts';
-import { ApiError, errorResponse, problemsOf } from './errors.ts';
+import { ApiError, databaseUnavailableResponse, errorResponse, isDatabaseUnavailable, problemsOf } from './errors.ts';
 import { HardenabilityInputError } from '../hardenability/errors.ts';
 import type { AppEnv } from './context.ts';
 import { catalogRoutes } from './routes/catalog.ts';
 import { ingestRoutes } from './routes/ingest.ts';
 import { analysisRoutes } from './routes/analysis.ts';
 import { alertRoutes } from './routes/alerts.ts';
+import { monitoringRoutes } from './routes/monitoring.ts';
 import { webhookRoutes } from './routes/webhooks.ts';
 import { partRequirementRoutes } from './routes/partRequirement.ts';
 import { receivingRoutes } from './routes/receiving.ts';
@@ -50,7 +51,7 @@ export function createApp({ database, logger, version = '0.1.0', access = {} }: 
       return c.json({ status: 'ok', database: database.kind });
     } catch (error) {
       logger.error({ err: error }, 'health check: database unreachable');
-      return errorResponse(c, 503, 'database_unavailable', 'The database does not answer.');
+      return databaseUnavailableResponse(c);
     }
   });
 
@@ -58,6 +59,7 @@ export function createApp({ database, logger, version = '0.1.0', access = {} }: 
   ingestRoutes(app, database.db);
   analysisRoutes(app, database.db);
   alertRoutes(app, database.db);
+  monitoringRoutes(app, database.db);
   webhookRoutes(app, database.db);
   partRequirementRoutes(app, database.db);
   receivingRoutes(app, database.db);
@@ -81,6 +83,10 @@ export function createApp({ database, logger, version = '0.1.0', access = {} }: 
     if (error instanceof HTTPException) return errorResponse(c, error.status, 'http_error', error.message);
     if (error instanceof SyntaxError) return errorResponse(c, 400, 'invalid_json', `The body is not valid JSON: ${error.message}`);
     if (error instanceof HardenabilityInputError) return errorResponse(c, 400, 'invalid_request', error.message);
+    if (isDatabaseUnavailable(error)) {
+      logger.warn({ err: error, path: c.req.path }, 'database unreachable: answered 503');
+      return databaseUnavailableResponse(c);
+    }
     logger.error({ err: error, path: c.req.path }, 'unexpected error');
     return errorResponse(c, 500, 'internal_error', 'Something went wrong on our side; it has been logged.');
   });

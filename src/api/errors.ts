@@ -30,3 +30,35 @@ export function errorResponse(c: Context, status: ContentfulStatusCode, code: st
 export function problemsOf(error: z.ZodError) {
   return error.issues.map((i) => ({ path: i.path.map(String).join('.'), message: i.message }));
 }
+
+// SQLSTATE codes (PostgreSQL manual, Appendix A "PostgreSQL Error Codes") that mean the database is not
+// reachable right now rather than that the request was wrong: class 08 (connection exception),
+// 57P01 admin_shutdown (pg_terminate_backend, a server shutdown), 57P02 crash_shutdown, 57P03
+// cannot_connect_now (starting up), 3D000 invalid_catalog_name (the database was dropped), 53300
+// too_many_connections.
+const UNAVAILABLE_SQLSTATES = new Set(['57P01', '57P02', '57P03', '3D000', '53300']);
+// Socket errors of node:net and the messages of node-postgres / pg-pool / PGlite for a lost connection.
+const UNAVAILABLE_SOCKET_CODES = new Set(['ECONNREFUSED', 'ECONNRESET', 'EPIPE', 'ETIMEDOUT', 'EHOSTUNREACH', 'ENETUNREACH', 'EAI_AGAIN']);
+const UNAVAILABLE_MESSAGES = /Connection terminated|terminating connection due to administrator command|timeout exceeded when trying to connect|Client has encountered a connection error|Connection ended|Cannot use a pool after calling end|Client was closed and is not queryable|PGlite is closed|database "[^"]*" does not exist/i;
+
+/**
+ * True when an error (or one of its causes: drizzle wraps driver errors in `cause`) says the database
+ * cannot be reached: the API then answers 503 with Retry-After, not 500.
+ */
+export function isDatabaseUnavailable(error: unknown): boolean {
+  for (let e = error as { code?: unknown; message?: unknown; cause?: unknown } | undefined, depth = 0; e && depth < 8; e = e.cause as typeof e, depth++) {
+    const code = typeof e.code === 'string' ? e.code : '';
+    if (code.startsWith('08') || UNAVAILABLE_SQLSTATES.has(code) || UNAVAILABLE_SOCKET_CODES.has(code)) return true;
+    if (typeof e.message === 'string' && UNAVAILABLE_MESSAGES.test(e.message)) return true;
+    if (e instanceof AggregateError && e.errors.some(isDatabaseUnavailable)) return true;
+  }
+  return false;
+}
+
+/** Seconds a client is asked to wait after a 503 for an unreachable database. */
+export const DATABASE_RETRY_AFTER_SECONDS = 5;
+
+export function databaseUnavailableResponse(c: Context) {
+  c.header('Retry-After', String(DATABASE_RETRY_AFTER_SECONDS));
+  return errorResponse(c, 503, 'database_unavailable', `The database does not answer at the moment; a write that got this answer may or may not have been stored (an import sent again is recognised and stored once). Try again in ${DATABASE_RETRY_AFTER_SECONDS} s.`);
+}

@@ -54,6 +54,12 @@ async function openPostgres(url: string, max: number, connectTimeoutMs: number, 
   // process. The statement in flight fails (the API answers 503); the broken client is not queryable
   // any more, so the pool discards it on release and opens a fresh one for the next request.
   pool.on('connect', (client) => client.on('error', report));
+  // A transaction's client whose connection died goes back to the pool at once, to be discarded: the
+  // caller may never release it (drizzle's transaction() sends BEGIN before its try block, so a dead
+  // connection there leaks the client), and ten leaked clients would leave every request waiting.
+  const connect = pool.connect.bind(pool) as (callback?: unknown) => unknown;
+  (pool as unknown as { connect: (callback?: unknown) => unknown }).connect = (callback?: unknown) =>
+    typeof callback === 'function' ? connect(callback) : (connect() as Promise<import('pg').PoolClient>).then(releaseWhenBroken);
   const db = drizzle(pool, { schema }) as unknown as Db;
   return {
     db,
@@ -61,6 +67,25 @@ async function openPostgres(url: string, max: number, connectTimeoutMs: number, 
     migrate: () => migrate(db as never, { migrationsFolder }),
     close: () => pool.end(),
   };
+}
+
+/** Makes a checked-out client's release() idempotent and calls it (with the error) when its connection dies. */
+function releaseWhenBroken(client: import('pg').PoolClient): import('pg').PoolClient {
+  const release = client.release.bind(client);
+  let released = false;
+  const onError = (error: Error) => {
+    if (released) return;
+    released = true;
+    release(error);
+  };
+  client.on('error', onError);
+  client.release = (error?: Error | boolean) => {
+    client.removeListener('error', onError);
+    if (released) return;
+    released = true;
+    release(error);
+  };
+  return client;
 }
 
 async function openPglite(dataDir: string | null): Promise<Database> {
