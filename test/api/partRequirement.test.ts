@@ -104,6 +104,10 @@ describe('page /part-to-band', () => {
     expect(csv.status).toBe(200);
     expect(String(csv.body).split('\n')[0]).toContain('Mill');
   }, 120_000);
+  test('with a DI the page adds Grossmann’s critical diameter', async () => {
+    const r = await t.request('GET', '/part-to-band?grade=8620H&diameter=25&medium=water&location=centre&hrc=27&di=50.8&run=1');
+    expect(String(r.body)).toMatch(/bars up to \d+\.\d mm under H = 0\.95/);
+  }, 60_000);
   test('bad input is said on the page', async () => {
     const r = await t.request('GET', '/part-to-band?diameter=2&run=1');
     expect(r.status).toBe(400);

@@ -39,6 +39,7 @@ interface FormValues {
   hrc: number;
   criterion: 'rate700' | 't85';
   austenitize: number;
+  di?: number;
 }
 
 function PartForm(props: { v: FormValues; grades: string[]; mills: string[] }) {
@@ -75,6 +76,10 @@ function PartForm(props: { v: FormValues; grades: string[]; mills: string[] }) {
         <label>
           Austenitized at (°C)
           <input type="number" name="austenitize" min="700" max="1100" step="5" value={String(v.austenitize)} />
+        </label>
+        <label>
+          DI for a critical diameter (mm, optional)
+          <input type="number" name="di" min="2" max="500" step="any" value={v.di === undefined ? '' : String(v.di)} />
         </label>
       </div>
       <input type="hidden" name="run" value="1" />
@@ -125,6 +130,11 @@ function results(r: PartRequirementResult, kit: PageKit) {
           <strong>Band minimum implied:</strong> {r.bandMinimum ? <span id="band-minimum">{r.bandMinimum.statement}</span> : 'none can be stated (see the notes)'}
           {r.bandMinimum ? ` (equivalent distance ${fmt(r.bandMinimum.exactDistanceMm, 1)} mm for the slowest quench of the range, written at the next standard position of the grade).` : null}
         </p>
+        {r.criticalDiameter ? (
+          <p id="critical-diameter">
+            <strong>Grossmann critical diameter:</strong> a steel of DI {fmt(r.criticalDiameter.diMm, 1)} mm hardens at the centre to the structure that defines its DI (commonly 50 % martensite) in bars up to {fmt(r.criticalDiameter.mm, 1)} mm under H = {r.criticalDiameter.severity} in⁻¹.
+          </p>
+        ) : null}
         {r.notes.length ? (
           <ul class="notes">
             {r.notes.map((n) => (
@@ -234,6 +244,7 @@ export function partToBandPage(app: Hono<any>, db: Db) {
         hrc: optionalNumber(c.req.query('hrc'), 'The hardness', { min: 10, max: 70 }) ?? 40,
         criterion: choice(c.req.query('criterion'), ['rate700', 't85'] as const, 'rate700'),
         austenitize: optionalNumber(c.req.query('austenitize'), 'The austenitizing temperature', { min: 700, max: 1100 }) ?? 850,
+        di: optionalNumber(c.req.query('di'), 'DI', { min: 2, max: 500 }),
       };
     } catch (error) {
       if (error instanceof ParamError) return { title: 'Part to band', section: 'part', status: 400, body: <Problem message={error.message} /> };
@@ -244,7 +255,7 @@ export function partToBandPage(app: Hono<any>, db: Db) {
       else {
         const quench: QuenchInput = v.severity !== undefined ? { severity: v.severity } : { medium: v.medium, agitation: v.agitation };
         try {
-          result = await partRequirement(db, { grade: v.grade, mill: v.mill || undefined, diameterMm: v.diameter, quench, location: v.location, requiredHrc: v.hrc, criterion: v.criterion, austenitize: v.austenitize });
+          result = await partRequirement(db, { grade: v.grade, mill: v.mill || undefined, diameterMm: v.diameter, quench, location: v.location, requiredHrc: v.hrc, criterion: v.criterion, austenitize: v.austenitize, diMm: v.di });
         } catch (error) {
           if (error instanceof AnalysisError || error instanceof HardenabilityInputError) problem = error.message;
           else throw error;
