@@ -20,7 +20,9 @@ import { severityFor, type Agitation, type Medium, SEVERITY_TABLE } from '../har
 import { monotoneCubic } from '../stats/monotoneInterpolation.ts';
 import { normalCdf, normalQuantile, tCdf } from '../stats/distributions.ts';
 import { invalidInput, notFound } from './errors.ts';
-import { predictCurve } from './prediction.ts';
+import { predictCurve, predictWithModel, type PredictedPointView } from './prediction.ts';
+import { getModel } from '../db/models.ts';
+import type { StoredModel } from './chemistryModel.ts';
 import { groupByHeat, loadSeriesCurves, millsOf, pointsAt, type HeatCurve, type SeriesSource } from './seriesData.ts';
 
 export type PartLocation = 'surface' | 'three_quarter_radius' | 'half_radius' | 'centre';
@@ -205,6 +207,9 @@ export interface MillShare {
     sd: number | null;
     df: number | null;
     probability: number | null;
+    /** Mean over the mill's heats of each heat's predicted probability (plant model only). */
+    predictedShare: number | null;
+    heatsPredicted: number;
     answeredBy: string;
     notes: string[];
   } | null;
@@ -251,6 +256,32 @@ function meanChemistry(curves: readonly HeatCurve[]): { chemistry: Chemistry; gr
   return { chemistry, grainSize: gn ? gs / gn : null, heats: heats.length };
 }
 
+/** Centre, SD, df and P(HRC ≥ min) at a distance of a predicted curve (linear between its points when not on one). */
+function probabilityAt(points: readonly PredictedPointView[], mm: number, minHrc: number): { hrc: number | null; sd: number | null; df: number | null; probability: number | null; between: [string, string] | null } {
+  const sorted = [...points].sort((a, b) => a.distanceMm - b.distanceMm);
+  let hrc: number | null = null;
+  let sd: number | null = null;
+  let df: number | null = null;
+  let between: [string, string] | null = null;
+  const exact = sorted.find((p) => Math.abs(p.distanceMm - mm) <= 1e-6);
+  if (exact) ({ hrc, sd, df } = exact);
+  else {
+    const i = sorted.findIndex((p) => p.distanceMm > mm);
+    if (i > 0) {
+      const a = sorted[i - 1];
+      const b = sorted[i];
+      const w = (mm - a.distanceMm) / (b.distanceMm - a.distanceMm);
+      hrc = a.hrc + w * (b.hrc - a.hrc);
+      sd = a.sd !== null && b.sd !== null ? a.sd + w * (b.sd - a.sd) : null;
+      df = a.df !== null && b.df !== null ? Math.min(a.df, b.df) : null;
+      between = [a.label, b.label];
+    }
+  }
+  const z = hrc !== null && sd !== null && sd > 0 ? (minHrc - hrc) / sd : null;
+  const probability = z === null ? null : df !== null ? 1 - tCdf(z, df) : 1 - normalCdf(z);
+  return { hrc, sd, df, probability, between };
+}
+
 /** The part estimate with each mill's history and predicted probability for a stored grade. */
 export async function partRequirement(db: Db, request: PartRequirementRequest): Promise<PartRequirementResult> {
   const grade = await findGrade(db, request.grade);
@@ -285,31 +316,33 @@ export async function partRequirement(db: Db, request: PartRequirementRequest): 
       const chem = request.chemistry ? { chemistry: request.chemistry, grainSize: request.grainSize ?? null, heats: 0 } : meanChemistry(own);
       if (Object.keys(chem.chemistry).length) {
         const prediction = await predictCurve(db, { grade: request.grade, mill, chemistry: chem.chemistry, grainSize: chem.grainSize });
-        const sorted = [...prediction.points].sort((a, b) => a.distanceMm - b.distanceMm);
-        const exact = sorted.find((p) => Math.abs(p.distanceMm - min.distanceMm) <= 1e-6);
-        let hrc: number | null = null;
-        let sd: number | null = null;
-        let df: number | null = null;
+        const at = probabilityAt(prediction.points, min.distanceMm, min.minHrc);
+        const { hrc, sd, df, probability } = at;
         const notes = [...prediction.notes];
-        if (exact) {
-          hrc = exact.hrc;
-          sd = exact.sd;
-          df = exact.df;
-        } else {
-          const i = sorted.findIndex((p) => p.distanceMm > min.distanceMm);
-          if (i > 0) {
-            const a = sorted[i - 1];
-            const b = sorted[i];
-            const w = (min.distanceMm - a.distanceMm) / (b.distanceMm - a.distanceMm);
-            hrc = a.hrc + w * (b.hrc - a.hrc);
-            sd = a.sd !== null && b.sd !== null ? a.sd + w * (b.sd - a.sd) : null;
-            df = a.df !== null && b.df !== null ? Math.min(a.df, b.df) : null;
-            notes.push(`the prediction has no point at ${min.label}: centre and SD interpolated linearly between ${a.label} and ${b.label}`);
-          } else notes.push(`the prediction does not reach ${min.label}`);
-        }
-        const z = hrc !== null && sd !== null && sd > 0 ? (min.minHrc - hrc) / sd : null;
-        const probability = z === null ? null : df !== null ? 1 - tCdf(z, df) : 1 - normalCdf(z);
+        if (at.between) notes.push(`the prediction has no point at ${min.label}: centre and SD interpolated linearly between ${at.between[0]} and ${at.between[1]}`);
+        else if (hrc === null) notes.push(`the prediction does not reach ${min.label}`);
         if (hrc !== null && sd === null) notes.push('no predictive SD: no probability');
+        // With a plant model: the mean over the mill's heats of each heat's predicted probability, the model's counterpart of the observed share.
+        let predictedShare: number | null = null;
+        let heatsPredicted = 0;
+        if (prediction.answeredBy.type === 'plant_model') {
+          const model = (await getModel(db, prediction.answeredBy.modelId)) as StoredModel | null;
+          if (model) {
+            let sum = 0;
+            for (const group of groupByHeat(own)) {
+              const h = group[0];
+              try {
+                const p = probabilityAt(predictWithModel(model, { chemistry: h.chemistry as Chemistry, grainSize: h.grainSize }, null).points, min.distanceMm, min.minHrc).probability;
+                if (p === null) continue;
+                sum += p;
+                heatsPredicted++;
+              } catch {
+                // a heat without a predictor the model needs is left out
+              }
+            }
+            predictedShare = heatsPredicted ? sum / heatsPredicted : null;
+          }
+        }
         share.prediction = {
           chemistry: request.chemistry ? 'given' : 'mean of the mill heats',
           heatsAveraged: chem.heats,
@@ -317,6 +350,8 @@ export async function partRequirement(db: Db, request: PartRequirementRequest): 
           sd,
           df,
           probability,
+          predictedShare,
+          heatsPredicted,
           answeredBy: prediction.answeredBy.type === 'plant_model' ? `plant model ${prediction.answeredBy.modelId} (v${prediction.answeredBy.version})` : `published predictor (${prediction.answeredBy.methods.join('; ')})`,
           notes,
         };

@@ -44,7 +44,7 @@ export function formatEstimate(r: PartEstimate | PartRequirementResult): string 
     lines.push(`  ${r.grade} by mill (share of heats that met it; predicted probability from chemistry):`);
     for (const m of r.mills) {
       const interval = m.interval95 ? ` [95 % ${pct(m.interval95[0])}–${pct(m.interval95[1])}]` : '';
-      const pred = m.prediction ? `; predicted ${m.prediction.hrc === null ? '–' : `${m.prediction.hrc.toFixed(1)} HRC`}, P = ${pct(m.prediction.probability)} (${m.prediction.answeredBy})` : '';
+      const pred = m.prediction ? `; predicted ${m.prediction.hrc === null ? '–' : `${m.prediction.hrc.toFixed(1)} HRC`}, P = ${pct(m.prediction.probability)}${m.prediction.predictedShare === null ? '' : `, predicted share ${pct(m.prediction.predictedShare)} over ${m.prediction.heatsPredicted} heats`} (${m.prediction.answeredBy})` : '';
       lines.push(`  - ${m.mill}: ${m.met}/${m.heats} = ${pct(m.share)}${interval}${m.notReaching ? `; ${m.notReaching} heat(s) not measured that far` : ''}${pred}`);
     }
   }

@@ -48,6 +48,19 @@ describe('GET /api/v1/part-requirement', () => {
     expect(b.limits.join(' ')).toMatch(/confirmed by testing parts/);
   }, 120_000);
 
+  test('with a plant model, the predicted share (mean of each heat’s predicted probability) is near the observed share', async () => {
+    // The synthetic history comes from a known linear model (test/fixtures/analysisHistory.ts), so a fitted
+    // model per mill is correctly specified (CORRAN's shift is a constant): its predicted share should match the counts within sampling error.
+    for (const mill of ['ANVIL', 'CORRAN']) expect((await t.request('POST', '/api/v1/models/fit', { grade: '8620H', mill })).status).toBe(201);
+    const r = await t.request('GET', '/api/v1/part-requirement?grade=8620H&diameter=25&medium=water&location=centre&hrc=27');
+    for (const m of r.body.mills) {
+      expect(m.prediction.answeredBy).toMatch(/^plant model/);
+      expect(m.prediction.heatsPredicted).toBe(m.heats);
+      // Binomial SE of a share from 30–40 heats is at most 0.09; allow about two of them.
+      expect(Math.abs(m.prediction.predictedShare - m.share)).toBeLessThan(0.18);
+    }
+  }, 120_000);
+
   test('45 mm bar, oil, centre, 40 HRC: a distance beyond what these certificates measured is said, not guessed', async () => {
     const r = await t.request('GET', '/api/v1/part-requirement?grade=8620H&diameter=45&medium=oil&location=centre&hrc=40&di=50.8');
     expect(r.status).toBe(200);

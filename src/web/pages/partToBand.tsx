@@ -107,6 +107,7 @@ function results(r: PartRequirementResult, kit: PageKit) {
     interpolated: m.interpolated,
     predicted: m.prediction?.hrc ?? null,
     probability: m.prediction?.probability ?? null,
+    predictedShare: m.prediction?.predictedShare ?? null,
     chemistry: m.prediction ? `${m.prediction.chemistry}${m.prediction.heatsAveraged ? ` (${m.prediction.heatsAveraged})` : ''}; ${m.prediction.answeredBy}` : '–',
   }));
   const rangeText = s.low === s.high ? `H = ${s.mid} in⁻¹` : `H ${s.low}–${s.high} in⁻¹ (${s.medium}, ${s.agitation === 'none' ? 'no' : s.agitation} agitation; ${s.source})`;
@@ -177,13 +178,15 @@ function results(r: PartRequirementResult, kit: PageKit) {
           { key: 'interpolated', label: 'Read between distances', numeric: true },
           { key: 'predicted', label: 'Predicted HRC', numeric: true, digits: 1 },
           { key: 'probability', label: 'Predicted probability (mean chemistry)', numeric: true, cell: (x: (typeof millRows)[number]) => (x.probability === null ? '–' : `${fmt(100 * x.probability, 1)} %`) },
+          { key: 'predictedShare', label: 'Predicted share (each heat’s chemistry)', numeric: true, cell: (x: (typeof millRows)[number]) => (x.predictedShare === null ? '–' : `${fmt(100 * x.predictedShare, 1)} %`) },
           { key: 'chemistry', label: 'Prediction from', wrap: true },
         ],
         rows: millRows,
       })}
       <p class="note">
         Share met: the mill’s heats whose end-quench hardness at {r.bandMinimum?.label ?? 'the position'} was at least {r.input.requiredHrc} HRC (read between measured distances by monotone cubics where the position was not measured).
-        Predicted probability: for one heat of the mill’s mean chemistry, from the chemistry model or the published predictor; heats vary in chemistry, so the share of heats can differ from it.
+        Predicted probability: for one heat of the mill’s mean chemistry, from the chemistry model or the published predictor; heats vary in chemistry, so the share of heats can differ from it. Predicted share: with a
+        plant chemistry model, the mean over the mill’s heats of each heat’s predicted probability — the model’s counterpart of the observed share.
       </p>
     </section>
   );
