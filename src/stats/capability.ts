@@ -126,6 +126,9 @@ export interface WithinSigma {
 /** Effective degrees of freedom of MR-bar/d2 on n individuals: 0.62·(n − 1) (Cryer & Ryan 1990; see header). */
 export const MOVING_RANGE_DF_FACTOR = 0.62;
 
+/** Fewest distinct readings for a fitted distribution (a shape needs more than a few lattice points; our rule). */
+export const MIN_DISTINCT_FOR_FIT = 8;
+
 /** Sample size from which the 0.135 % / 99.865 % empirical quantiles leave the extreme values: round(1/0.00135). */
 export const PERCENTILE_MIN_N = Math.round(1 / 0.00135);
 
@@ -229,8 +232,10 @@ export interface CapabilityResult {
   normality: AndersonDarlingResult | null;
   /** Which normality test decided the nonNormal flag, and why (reading resolution; see header). */
   normalityJudgement: NormalityJudgement | null;
-  /** Box–Cox fitted indices (when normality is rejected, or asked for); null when not fitted or not possible. */
+  /** Box–Cox or Johnson fitted indices (when normality is rejected, or asked for); null when not fitted or not possible. */
   fitted: FittedCapability | null;
+  /** Why no distribution was fitted when one was called for, else null. */
+  fitProblem: string | null;
   percentile: PercentileIndices | null;
   /** Indices flagged by the stability rules (observations for individuals, subgroups otherwise). */
   unstablePoints: number[];
@@ -295,15 +300,17 @@ function fitDistribution(values: readonly number[], lsl: number | null, usl: num
   if (values.every((x) => x > 0)) {
     try {
       const fit = boxCoxFit(values);
-      if (!fit.atBound) {
-        const idx = boxCoxIndices(fit, lsl, usl);
+      const idx = fit.atBound ? null : boxCoxIndices(fit, lsl, usl);
+      if (idx && Number.isFinite(idx.ppk) && Number.isFinite(idx.expectedPpm)) {
         const [ppk, ppm] = bootstrapPercentile(values, (s) => {
           const b = boxCoxIndices(boxCoxFit(s), lsl, usl);
           return [b.ppk, b.expectedPpm];
         }, boot);
         return { method: 'box-cox', lambda: fit.lambda, johnson: null, choice: 'Box–Cox, maximum-likelihood λ', ...idx, intervals: { ppk: ppk ?? null, expectedPpm: ppm ?? null } };
       }
-      choice = `Box–Cox λ at the end of its range (${fit.lambda.toFixed(2)}), so Johnson by percentiles`;
+      if (idx) {
+        choice = 'Box–Cox quantiles undefined, so Johnson by percentiles';
+      } else choice = `Box–Cox λ at the end of its range (${fit.lambda.toFixed(2)}), so Johnson by percentiles`;
     } catch {
       choice = 'no Box–Cox fit, so Johnson by percentiles';
     }
@@ -311,6 +318,7 @@ function fitDistribution(values: readonly number[], lsl: number | null, usl: num
   try {
     const fit = johnsonFit(values);
     const idx = johnsonIndices(fit, lsl, usl);
+    if (!Number.isFinite(idx.ppk) || !Number.isFinite(idx.expectedPpm)) return null;
     const [ppk, ppm] = bootstrapPercentile(values, (s) => {
       const f = johnsonFit(s);
       if (f.family !== fit.family) return null;
@@ -452,8 +460,15 @@ export function capability(data: CapabilityData, band: SpecBand, options: Capabi
 
   const fittedMode = options.fitted ?? 'never';
   let fitted: FittedCapability | null = null;
-  if (n >= 10 && (fittedMode === 'always' || (fittedMode === 'auto' && nonNormal))) {
-    fitted = fitDistribution(values, lsl, usl, bootOptions);
+  let fitProblem: string | null = null;
+  if (fittedMode === 'always' || (fittedMode === 'auto' && nonNormal)) {
+    const distinct = new Set(values).size;
+    if (n < 10) fitProblem = `${n} values: too few to fit a distribution`;
+    else if (distinct < MIN_DISTINCT_FOR_FIT) fitProblem = `the readings take only ${distinct} distinct values: too coarse to fit a distribution's shape`;
+    else {
+      fitted = fitDistribution(values, lsl, usl, bootOptions);
+      if (!fitted) fitProblem = 'neither a Box–Cox nor a Johnson curve could be fitted';
+    }
   }
 
   const percentileIndices = (s: ArrayLike<number>) => {
@@ -506,6 +521,7 @@ export function capability(data: CapabilityData, band: SpecBand, options: Capabi
     normality,
     normalityJudgement: judgement,
     fitted,
+    fitProblem,
     percentile,
     unstablePoints,
     flags: { smallSample: n < minN, nonNormal, unstable: unstablePoints.length > 0, percentileFewData: percentile !== null && n < PERCENTILE_MIN_N },

@@ -30,6 +30,7 @@ export function flagSentences(r: CapabilityResult, _values: readonly number[] = 
         `A fitted ${r.fitted.method === 'box-cox' ? `Box–Cox distribution (λ = ${fmt(r.fitted.lambda, 2)})` : `Johnson ${r.fitted.johnson?.family} curve (${r.fitted.choice})`} gives Ppk ${fmt(r.fitted.ppk)}${iv ? ` (95% bootstrap interval ${fmt(iv.lower)} – ${fmt(iv.upper)})` : ''} and ${fmt(r.fitted.expectedPpm, 0)} PPM expected outside (ISO 22514-2 distribution method). A mixture of mills or a drift is not skew: check the per-mill figures and the trend first.`,
       );
     }
+    if (!r.fitted && r.fitProblem) out.push(`No fitted distribution: ${r.fitProblem}. Judge the shape from the histogram and the probability plot.`);
     if (r.percentile && r.percentile.interval) {
       out.push(`The percentile-based Ppk, ${fmt(r.percentile.ppk)} (95% bootstrap interval ${fmt(r.percentile.interval.lower)} – ${fmt(r.percentile.interval.upper)}), does not assume a distribution; it rests on ${r.n} heats, enough to reach the 0.135 % tails.`);
     }
@@ -198,7 +199,7 @@ export function capabilityPage(app: Hono<any>, db: Db) {
           {kit.chart({
             id: 'ppk',
             title: `Ppk by distance: ${who}`,
-            note: `Point: Ppk; bar: its 95% interval (Bissell 1990); dashed line: 1.33. In the table: where normality is rejected (on the grouped readings when they are whole HRC), Ppk (Box–Cox fit) from a fitted distribution; Ppk (percentile) only from ${PERCENTILE_MIN_N} heats, where the 0.135 % tails can be read from the data.`,
+            note: `Point: Ppk; bar: its 95% interval (Bissell 1990); dashed line: 1.33. In the table: where normality is rejected (on the grouped readings when they are whole HRC), Ppk (fitted distribution) from a Box–Cox or Johnson fit; Ppk (percentile) only from ${PERCENTILE_MIN_N} heats, where the 0.135 % tails can be read from the data.`,
             spec: pagePpkSpec(study),
             table: { columns: INDEX_COLUMNS, rows },
             openUpTo: 40,

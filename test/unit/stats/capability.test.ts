@@ -77,6 +77,11 @@ describe('capability indices (ISO 22514-2; NIST/SEMATECH e-Handbook §6.1.6)', (
     expect(forced.percentile!.interval).toBeNull();
     expect(forced.fitted).toBeNull();
     expect(capability({ values: x }, { lsl: 30, usl: 42 }).percentile).toBeNull();
+    // Readings on only 4 lattice values: no shape to fit (our rule: at least 8 distinct values), said so.
+    const coarse = Array.from({ length: 120 }, (_, i) => 55 + (i % 7 === 0 ? 3 : i % 3));
+    const c = capability({ values: coarse }, { lsl: 50, usl: 60 }, { fitted: 'always' });
+    expect(c.fitted).toBeNull();
+    expect(c.fitProblem).toMatch(/only 4 distinct values/);
   });
   it('subgroup data: within sigma is the X-bar/S chart sigma (s-bar/c4)', () => {
     const groups = [x.slice(0, 5), x.slice(5, 10), x.slice(10, 15), x.slice(15, 20), x.slice(20, 25)];
