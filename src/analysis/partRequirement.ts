@@ -60,6 +60,8 @@ export interface EquivalentAt {
   lambda: number | null;
   distanceMm: number | null;
   status: LocationEquivalence['byRate']['status'];
+  /** Distances of the specimen the match can use (mm). */
+  rangeMm: [number, number];
 }
 
 export interface BandMinimum {
@@ -139,7 +141,7 @@ export function estimatePart(input: PartInput, system: 'mm' | 'sixteenths' = 'mm
   const at = (H: number, fr: readonly number[]) => barEquivalence({ diameterMm: input.diameterMm, severity: H, austenitize, bathTemperature: severity.bathTemperature, fractions: fr });
   const pick = (l: LocationEquivalence, H: number): EquivalentAt => {
     const m = criterion === 'rate700' ? l.byRate : l.byT85;
-    return { severity: H, rate700: l.rate700, t85: l.t85, lambda: l.lambda, distanceMm: m.mm, status: m.status };
+    return { severity: H, rate700: l.rate700, t85: l.t85, lambda: l.lambda, distanceMm: m.mm, status: m.status, rangeMm: m.rangeMm };
   };
   const mid = at(severity.mid, fractions);
   const middle = pick(mid.locations[0], severity.mid);
@@ -154,7 +156,7 @@ export function estimatePart(input: PartInput, system: 'mm' | 'sixteenths' = 'mm
     bandMinimum = bandMinimumAt(0, input.requiredHrc, system);
     notes.push('this location cools faster than any point of the end-quench specimen that the computation resolves: the requirement is written at the first position');
   } else {
-    notes.push('this location cools more slowly than the usable length of the end-quench specimen: no end-quench distance is equivalent, and the end-quench test cannot state the requirement');
+    notes.push(`this location cools more slowly than any point of the end-quench specimen that the computation matches (up to ${fmt1(slowest.rangeMm[1])} mm from the quenched end): no end-quench distance is equivalent, and the end-quench test cannot state the requirement`);
   }
   if (severity.low !== severity.high) notes.push(`the band minimum is written for the slowest quench of the range (H = ${severity.low} in⁻¹); at H = ${severity.high} the distance is ${fastest.distanceMm === null ? 'not resolved' : `${fmt1(fastest.distanceMm)} mm`}`);
   return {
