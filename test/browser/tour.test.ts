@@ -94,4 +94,13 @@ describe('the five-minute tour', () => {
     expect(text).toContain(story.comfortableMill);
     expect(text).toContain(story.strugglingMill);
   });
+
+  it('7. Receiving: the laboratory that started reading high, its chart, and the re-test plan', async () => {
+    const story = site.demo.stories.labReadsHigh;
+    const text = await stop('7-receiving', `/receiving?grade=${encodeURIComponent(story.grade)}&mill=${story.mill}`, '#agreement-detail');
+    expect(text).toMatch(/reads high since Q26-/);
+    expect(text).toMatch(/no longer agrees with ours/);
+    expect(text).toContain(`${story.mill} ${story.grade}: agreement with our laboratory`);
+    expect(text).toMatch(/Lots due for a re-test \(\d+\)/);
+  });
 });

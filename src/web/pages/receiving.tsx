@@ -57,6 +57,7 @@ function detail(plan: ReceivingPlan, kit: PageKit) {
         <div class="grid2">
           {kit.chart({
             id: 'bias-chart',
+            openUpTo: 0,
             title: `Pair bias ${plan.mill} ${plan.grade}`,
             note: (
               <>
@@ -170,10 +171,20 @@ export function receivingPage(app: Hono<any>, db: Db) {
             { key: 'inARow', label: 'Accepted re-tests in a row', numeric: true },
             { key: 'plan', label: 'Re-test' },
             { key: 'due', label: 'Lots due', numeric: true },
-            { key: 'reasons', label: 'Why', wrap: true },
+            { key: 'reasons', label: 'Why', csvOnly: true },
           ],
           rows: summary,
         })}
+        <ul class="reasons">
+          {plans.map((p) => (
+            <li>
+              <strong>
+                {p.mill} {p.grade}: {planWords(p)}.
+              </strong>{' '}
+              {p.decision.reasons.slice(1).join('; ')}.
+            </li>
+          ))}
+        </ul>
         <p class="note">
           Rules (after ISO 2859-3, the numbers our own): every lot until 10 re-tests in a row are accepted — inside the band, and within 3 HRC of the certificate on average — with a weakest-distance Ppk of at least 1.0 over the last 12 months and no open laboratory signal; then 1 lot in 2, one step rarer for each further 10 accepted, never rarer than 1 in 3 without Ppk 1.33 and limits of agreement within ±2.5 HRC, and never rarer than 1 in 5. One re-test not accepted returns the mill to every lot. Our repeatability: {repeatability.sd !== null ? `${fmt(repeatability.sd, 2)} HRC per reading (r = ${fmt(repeatability.limit, 1)} HRC) from ${repeatability.heats} heats we tested twice; ${repeatability.note}` : repeatability.note}.
         </p>

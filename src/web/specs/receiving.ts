@@ -35,7 +35,7 @@ export function biasChartSpec(rows: readonly BiasChartRow[]): VegaLiteSpec {
           mark: { type: 'point', opacity: 0.8 },
           encoding: {
             x,
-            y: { field: 'bias', type: 'quantitative', title: 'Mill − plant, mean over the curve (HRC)', scale: { zero: false } },
+            y: { field: 'bias', type: 'quantitative', title: 'Mill − plant (HRC)', scale: { zero: false } },
             shape: { field: 'reference', type: 'nominal', title: null, scale: { domain: ['reference pairs', 'judged pairs'], range: ['circle', 'triangle-up'] } },
             color: { value: PALETTE.navy },
             tooltip,
@@ -49,7 +49,7 @@ export function biasChartSpec(rows: readonly BiasChartRow[]): VegaLiteSpec {
         },
       ],
     },
-    { height: 250, description: 'Pair bias of the mill laboratory against the receiving laboratory, with its EWMA and limits' },
+    { height: 280, description: 'Pair bias of the mill laboratory against the receiving laboratory, with its EWMA and limits' },
   );
 }
 
