@@ -300,6 +300,8 @@ function isSmooth(scenario: Scenario, mill: string, castDate: string): boolean {
 function receivingRetest(rng: Rng, scenario: Scenario, draft: HeatDraft, receivedDate: string): LotDraft['retest'] {
   const lab = scenario.receiving;
   const testDate = addDays(receivedDate, rng.int(3));
+  // The certificate as reported (with story 6's laboratory bias where it applies): a certificate that
+  // passes keeps its re-test inside the band, so that story 4 stays the only lot failing on receipt.
   const certificatePasses = withinBand(draft.grade, draft.reported);
   let readings = measuredCurve(draft.curve, draft.chemistry.C, rng, lab.noiseHrc, lab.hrcStep, lab.biasHrc);
   // The demo keeps one planted lot that fails on receipt: an ordinary re-test of a heat whose
@@ -330,7 +332,8 @@ function draftSupply(rng: Rng, scenario: Scenario, supply: DemoSupply, supplyInd
     const curve = trueCurve(model, chemistry, grainSize);
     const smooth = isSmooth(scenario, mill.code, castDate);
     const s = scenario.stories.smoothReporting;
-    // The laboratory's bias adds no random draw, so every other heat of the stream stays as it was.
+    // The laboratory's bias adds no random draw here; only the re-test redraws below can shift the later
+    // draws of that one supply's stream (every other supply has its own stream).
     const reported = measuredCurve(curve, chemistry.C, rng, smooth ? s.noiseHrc : mill.labNoiseHrc, smooth ? s.step : mill.hrcStep, labBiasAt(scenario, mill.code, grade.code, castDate));
     const testDate = addDays(castDate, 1 + rng.int(2));
     const certificateDate = addDays(testDate, 1 + rng.int(4));
