@@ -6,7 +6,7 @@ import { HTTPException } from 'hono/http-exception';
 import { ZodError } from 'zod';
 import { ping, type Database } from '../db/connection.ts';
 import type { Logger } from '../logger.ts';
-import { ApiError, databaseUnavailableResponse, errorResponse, isDatabaseUnavailable, problemsOf } from './errors.ts';
+import { ApiError, databaseUnavailableResponse, errorResponse, isDatabaseUnavailable, loggableError, problemsOf } from './errors.ts';
 import { HardenabilityInputError } from '../hardenability/errors.ts';
 import type { AppEnv } from './context.ts';
 import { catalogRoutes } from './routes/catalog.ts';
@@ -50,7 +50,7 @@ export function createApp({ database, logger, version = '0.1.0', access = {} }: 
       await ping(database.db);
       return c.json({ status: 'ok', database: database.kind });
     } catch (error) {
-      logger.error({ err: error }, 'health check: database unreachable');
+      logger.error({ err: loggableError(error) }, 'health check: database unreachable');
       return databaseUnavailableResponse(c);
     }
   });
@@ -84,10 +84,10 @@ export function createApp({ database, logger, version = '0.1.0', access = {} }: 
     if (error instanceof SyntaxError) return errorResponse(c, 400, 'invalid_json', `The body is not valid JSON: ${error.message}`);
     if (error instanceof HardenabilityInputError) return errorResponse(c, 400, 'invalid_request', error.message);
     if (isDatabaseUnavailable(error)) {
-      logger.warn({ err: error, path: c.req.path }, 'database unreachable: answered 503');
+      logger.warn({ err: loggableError(error), path: c.req.path }, 'database unreachable: answered 503');
       return databaseUnavailableResponse(c);
     }
-    logger.error({ err: error, path: c.req.path }, 'unexpected error');
+    logger.error({ err: loggableError(error), path: c.req.path }, 'unexpected error');
     return errorResponse(c, 500, 'internal_error', 'Something went wrong on our side; it has been logged.');
   });
   return app;

@@ -62,3 +62,21 @@ export function databaseUnavailableResponse(c: Context) {
   c.header('Retry-After', String(DATABASE_RETRY_AFTER_SECONDS));
   return errorResponse(c, 503, 'database_unavailable', `The database does not answer at the moment; a write that got this answer may or may not have been stored (an import sent again is recognised and stored once). Try again in ${DATABASE_RETRY_AFTER_SECONDS} s.`);
 }
+
+/**
+ * An error as it may be logged: name, code, message and stack (causes too), with the bound parameters
+ * of a failed query cut out. drizzle puts them in the message ("Failed query: ...\nparams: ..."), and
+ * they can hold a webhook secret being stored, a token hash, or megabytes of an imported document.
+ */
+export function loggableError(error: unknown, depth = 0): Record<string, unknown> {
+  const e = error as { name?: string; message?: string; code?: unknown; stack?: string; cause?: unknown } | null;
+  if (!e || typeof e !== 'object') return { message: String(error) };
+  const scrub = (s: string | undefined) => s?.replace(/\nparams: [\s\S]*?(?=\n\s+at |\ncaused by|$)/g, '\nparams: (not logged)');
+  return {
+    type: e.name,
+    ...(e.code === undefined ? {} : { code: e.code }),
+    message: scrub(e.message),
+    stack: scrub(e.stack),
+    ...(e.cause && depth < 4 ? { cause: loggableError(e.cause, depth + 1) } : {}),
+  };
+}
