@@ -30,10 +30,10 @@
 // readings on a grid coarse against σ (e.g. whole HRC) by a chi-square test on the grouped readings,
 // otherwise Anderson–Darling (D'Agostino & Stephens 1986); `normality` keeps the Anderson–Darling
 // result for reference, `normalityJudgement` says which test decided.
-// When normality is rejected at normalityAlpha (options.fitted 'auto'; the default is 'never'), a Box–Cox
-// distribution is fitted (src/stats/boxCox.ts), or a Johnson curve by percentiles (Slifker & Shapiro
-// 1980; src/stats/johnson.ts) when the Box–Cox λ runs to the end of its range or the values are not all
-// positive, and the indices worked out from its quantiles (ISO 22514-2 distribution methods),
+// When normality is rejected at normalityAlpha (options.fitted 'auto'; the default is 'never'), a Johnson
+// curve is fitted by percentiles (Slifker & Shapiro 1980; src/stats/johnson.ts), or a Box–Cox
+// distribution (src/stats/boxCox.ts) when the Johnson percentiles give none, and the indices worked out
+// from its quantiles (ISO 22514-2 distribution methods),
 // with percentile-bootstrap intervals for its Ppk and expected PPM (Efron & Tibshirani 1993;
 // src/stats/bootstrap.ts, seeded). A mixture of mills or a drifting process is not a skewed
 // distribution: the stability flag and the supply view speak to those.
@@ -191,13 +191,13 @@ export interface PercentileIndices {
 
 /** Indices from a fitted (Box–Cox) distribution, with bootstrap intervals. */
 export interface FittedCapability extends FittedIndices {
-  /** Box–Cox (ML λ), or Johnson (Slifker & Shapiro percentiles) when Box–Cox cannot describe the shape. */
+  /** Johnson (Slifker & Shapiro percentiles), or Box–Cox (ML λ) when the Johnson percentiles give no fit. */
   method: 'box-cox' | 'johnson';
   /** Box–Cox λ; null for Johnson. */
   lambda: number | null;
   /** Johnson parameters (family SU/SB/SL, γ, η, ε, λ); null for Box–Cox. */
   johnson: JohnsonFit | null;
-  /** Why this distribution (e.g. Box–Cox λ at its bound, so Johnson). */
+  /** Which distribution and, for Box–Cox, why Johnson did not fit. */
   choice: string;
   intervals: { ppk: BootstrapInterval | null; expectedPpm: BootstrapInterval | null };
 }
@@ -290,42 +290,40 @@ function indices(mu: number, sigma: number, lsl: number | null, usl: number | nu
 }
 
 /**
- * A fitted distribution for skewed data: Box–Cox when the values are positive and its λ is inside its
- * range, else Johnson by percentiles (Slifker & Shapiro 1980), which has a location and handles readings
- * far from zero with a small coefficient of variation (where Box–Cox needs an extreme λ). Bootstrap
- * intervals refit the same family on each resample. Null when neither fits.
+ * A fitted distribution for skewed data: a Johnson curve by percentiles (Slifker & Shapiro 1980) first,
+ * since it has a location parameter and so suits readings far from zero with a small coefficient of
+ * variation (hardness), where Box–Cox needs an extreme λ and extrapolates its tails badly (measured in
+ * bench/capability.bench.ts); Box–Cox (positive values) when the Johnson percentiles give no fit.
+ * Bootstrap intervals refit on each resample (for Johnson, whichever family the resample selects). Null
+ * when neither fits.
  */
 function fitDistribution(values: readonly number[], lsl: number | null, usl: number | null, boot: { replicates: number; seed?: number; confidence: number }): FittedCapability | null {
-  let choice = '';
-  if (values.every((x) => x > 0)) {
-    try {
-      const fit = boxCoxFit(values);
-      const idx = fit.atBound ? null : boxCoxIndices(fit, lsl, usl);
-      if (idx && Number.isFinite(idx.ppk) && Number.isFinite(idx.expectedPpm)) {
-        const [ppk, ppm] = bootstrapPercentile(values, (s) => {
-          const b = boxCoxIndices(boxCoxFit(s), lsl, usl);
-          return [b.ppk, b.expectedPpm];
-        }, boot);
-        return { method: 'box-cox', lambda: fit.lambda, johnson: null, choice: 'Box–Cox, maximum-likelihood λ', ...idx, intervals: { ppk: ppk ?? null, expectedPpm: ppm ?? null } };
-      }
-      if (idx) {
-        choice = 'Box–Cox quantiles undefined, so Johnson by percentiles';
-      } else choice = `Box–Cox λ at the end of its range (${fit.lambda.toFixed(2)}), so Johnson by percentiles`;
-    } catch {
-      choice = 'no Box–Cox fit, so Johnson by percentiles';
-    }
-  } else choice = 'values not all positive (no Box–Cox), so Johnson by percentiles';
+  let why = '';
   try {
     const fit = johnsonFit(values);
     const idx = johnsonIndices(fit, lsl, usl);
+    if (Number.isFinite(idx.ppk) && Number.isFinite(idx.expectedPpm)) {
+      const [ppk, ppm] = bootstrapPercentile(values, (s) => {
+        const j = johnsonIndices(johnsonFit(s), lsl, usl);
+        return [j.ppk, j.expectedPpm];
+      }, boot);
+      return { method: 'johnson', lambda: null, johnson: fit, choice: `Johnson ${fit.family} by percentiles`, ...idx, intervals: { ppk: ppk ?? null, expectedPpm: ppm ?? null } };
+    }
+    why = 'Johnson quantiles undefined';
+  } catch (error) {
+    why = `no Johnson fit (${(error as Error).message})`;
+  }
+  if (!values.every((x) => x > 0)) return null;
+  try {
+    const fit = boxCoxFit(values);
+    if (fit.atBound) return null;
+    const idx = boxCoxIndices(fit, lsl, usl);
     if (!Number.isFinite(idx.ppk) || !Number.isFinite(idx.expectedPpm)) return null;
     const [ppk, ppm] = bootstrapPercentile(values, (s) => {
-      const f = johnsonFit(s);
-      if (f.family !== fit.family) return null;
-      const j = johnsonIndices(f, lsl, usl);
-      return [j.ppk, j.expectedPpm];
+      const b = boxCoxIndices(boxCoxFit(s), lsl, usl);
+      return [b.ppk, b.expectedPpm];
     }, boot);
-    return { method: 'johnson', lambda: null, johnson: fit, choice: `${choice} (${fit.family})`, ...idx, intervals: { ppk: ppk ?? null, expectedPpm: ppm ?? null } };
+    return { method: 'box-cox', lambda: fit.lambda, johnson: null, choice: `${why}, so Box–Cox with maximum-likelihood λ`, ...idx, intervals: { ppk: ppk ?? null, expectedPpm: ppm ?? null } };
   } catch {
     return null;
   }
