@@ -140,7 +140,7 @@ export function estimatePart(input: PartInput, system: 'mm' | 'sixteenths' = 'mm
   const fractions = [...new Set([fraction, ...Array.from({ length: 11 }, (_, i) => i / 10)])];
   const at = (H: number, fr: readonly number[]) => barEquivalence({ diameterMm: input.diameterMm, severity: H, austenitize, bathTemperature: severity.bathTemperature, fractions: fr });
   const pick = (l: LocationEquivalence, H: number): EquivalentAt => {
-    const m = criterion === 'rate700' ? l.byRate : l.byT85;
+    const m = criterion === 'rate700' ? l.byRate : criterion === 'rate500' ? l.byRate500 : l.byT85;
     return { severity: H, rate700: l.rate700, t85: l.t85, lambda: l.lambda, distanceMm: m.mm, status: m.status, rangeMm: m.rangeMm };
   };
   const mid = at(severity.mid, fractions);
@@ -166,7 +166,7 @@ export function estimatePart(input: PartInput, system: 'mm' | 'sixteenths' = 'mm
     middle,
     fastest,
     profile: mid.locations
-      .map((l) => ({ fraction: l.fraction, distanceMm: (criterion === 'rate700' ? l.byRate : l.byT85).mm, lambda: l.lambda, rate700: l.rate700 }))
+      .map((l) => ({ fraction: l.fraction, distanceMm: (criterion === 'rate700' ? l.byRate : criterion === 'rate500' ? l.byRate500 : l.byT85).mm, lambda: l.lambda, rate700: l.rate700 }))
       .sort((a, b) => a.fraction - b.fraction),
     bandMinimum,
     notes,
@@ -377,7 +377,7 @@ export function equivalenceTable(diametersMm: readonly number[], media: Readonly
     const H = (s.low + s.high) / 2;
     for (const d of diametersMm) {
       const r = barEquivalence({ diameterMm: d, severity: H, bathTemperature: s.bathTemperature, fractions: [1, 0.75, 0] });
-      const mm = (l: LocationEquivalence) => (criterion === 'rate700' ? l.byRate : l.byT85).mm;
+      const mm = (l: LocationEquivalence) => (criterion === 'rate700' ? l.byRate : criterion === 'rate500' ? l.byRate500 : l.byT85).mm;
       rows.push({ medium: `${m.medium}${m.agitation && m.agitation !== 'none' ? ` (${m.agitation})` : ''}`, severity: H, diameterMm: d, surface: mm(r.locations[0]), threeQuarter: mm(r.locations[1]), centre: mm(r.locations[2]), lambdaCentre: r.locations[2].lambda });
     }
   }

@@ -34,7 +34,7 @@ export function formatEstimate(r: PartEstimate | PartRequirementResult): string 
   const s = r.severity;
   const lines = [
     `${r.input.diameterMm} mm round bar, ${s.medium ? `${s.medium} (${s.agitation === 'none' ? 'no' : s.agitation} agitation, H ${s.low === s.high ? s.mid : `${s.low}–${s.high}`} in⁻¹)` : `H ${s.mid} in⁻¹`}, ${r.input.location}, at least ${r.input.requiredHrc} HRC`,
-    `  equivalent end-quench distance: ${mm(r.middle.distanceMm)} (range ${mm(r.fastest.distanceMm)} to ${mm(r.slowest.distanceMm)}; ${r.input.criterion === 'rate700' ? 'equal cooling rate at 700 °C' : 'equal t8/5'})`,
+    `  equivalent end-quench distance: ${mm(r.middle.distanceMm)} (range ${mm(r.fastest.distanceMm)} to ${mm(r.slowest.distanceMm)}; ${r.input.criterion === 'rate700' ? 'equal cooling rate at 700 °C' : r.input.criterion === 'rate500' ? 'equal cooling rate at 500 °C' : 'equal t8/5'})`,
     `  λ = ${r.middle.lambda === null ? '–' : r.middle.lambda.toFixed(2)} (t8/5 ${r.middle.t85 === null ? '–' : `${r.middle.t85.toFixed(0)} s`}), cooling rate at 700 °C ${r.middle.rate700 === null ? '–' : `${r.middle.rate700.toFixed(1)} K/s`}`,
     `  band minimum implied: ${r.bandMinimum ? r.bandMinimum.statement : 'none can be stated'}`,
   ];
@@ -63,14 +63,14 @@ export function register(program: Command): void {
     .option('--severity <H>', 'Grossmann H in in⁻¹ instead of a medium', numberOption('H', 0.001, 100))
     .option('--location <where>', 'surface, three_quarter_radius, half_radius, centre, or a fraction of the radius', locationOption, 'centre' as PartLocation | number)
     .option('--hrc <HRC>', 'hardness the part needs there', numberOption('the hardness', 10, 70))
-    .option('--criterion <c>', 'rate700 (Lamont, default) or t85', oneOf(['rate700', 't85']))
+    .option('--criterion <c>', 'rate700 (Lamont, default), rate500 or t85', oneOf(['rate700', 'rate500', 't85']))
     .option('--austenitize <°C>', 'austenitizing temperature (default 850)', numberOption('the temperature', 700, 1100))
     .option('--grade <code>', 'a stored grade: add each mill’s share and predicted probability')
     .option('--mill <code>', 'only this mill')
     .option('--di <mm>', 'ideal critical diameter: add Grossmann’s critical diameter', numberOption('DI', 2, 500))
     .option('--table', 'print equivalent distances of 20–80 mm bars at surface, 3/4 radius and centre for the medium')
     .option('--json', 'print the result as JSON')
-    .action(async (opts: { diameter?: number; medium?: Medium; agitation?: Agitation; severity?: number; location: PartLocation | number; hrc?: number; criterion?: 'rate700' | 't85'; austenitize?: number; grade?: string; mill?: string; di?: number; table?: boolean; json?: boolean }) => {
+    .action(async (opts: { diameter?: number; medium?: Medium; agitation?: Agitation; severity?: number; location: PartLocation | number; hrc?: number; criterion?: 'rate700' | 'rate500' | 't85'; austenitize?: number; grade?: string; mill?: string; di?: number; table?: boolean; json?: boolean }) => {
       if (opts.table) {
         const media = opts.medium ? [{ medium: opts.medium, agitation: opts.agitation }] : [{ medium: 'oil' as Medium }, { medium: 'water' as Medium }];
         const rows = equivalenceTable([20, 30, 40, 50, 60, 70, 80], media, opts.criterion);

@@ -21,7 +21,7 @@ const quenchQuery = {
   medium: z.enum(MEDIA).optional().openapi({ description: 'Quench medium; its typical Grossmann H range is used (see /api/v1/quench/severities). Give medium or severity.' }),
   agitation: z.enum(AGITATIONS).optional().openapi({ description: 'Agitation of the medium (default none).' }),
   severity: z.coerce.number().positive().max(100).optional().openapi({ description: 'Grossmann H in in⁻¹, instead of a medium.' }),
-  criterion: z.enum(['rate700', 't85']).optional().openapi({ description: 'Equal cooling rate at 700 °C (Lamont, default) or equal t8/5.' }),
+  criterion: z.enum(['rate700', 'rate500', 't85']).optional().openapi({ description: 'Equal cooling rate at 700 °C (Lamont, default), equal cooling rate at 500 °C, or equal t8/5.' }),
 };
 
 function quenchOf(q: { medium?: Medium; agitation?: Agitation; severity?: number }): QuenchInput {

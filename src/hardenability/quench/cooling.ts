@@ -2,7 +2,8 @@
 // (conduction.ts), and the cooling figures the equivalence needs at each point: the cooling rate at 700 °C
 // (Lamont's criterion; A. Lamont, "How to estimate hardening depth in bars", Iron Age 152 (1943) 64–70,
 // used 1300 °F ≈ 704 °C, we use 700 °C) and t8/5, the time from 800 to 500 °C, with the cooling parameter
-// λ = t8/5 / 100 s (common practice in continuous-cooling diagrams).
+// λ = t8/5 / 100 s (common practice in continuous-cooling diagrams); also the cooling rate at 500 °C, the
+// criterion that reproduces the textbook chart readings we found (docs/part-to-band.md §4).
 //
 // End-quench specimen (ISO 642 / ASTM A255): a 25 mm × 100 mm cylinder, the end z = 0 water-cooled, all
 // other faces losing heat to still air by convection (h_c = 10 W/(m²·K), common practice for natural
@@ -25,6 +26,8 @@ export interface CoolingPoint {
   at: number;
   /** K/s at 700 °C (null: 700 °C not reached within the time computed). */
   rate700: number | null;
+  /** K/s at 500 °C (null: not reached). */
+  rate500: number | null;
   /** s from 800 to 500 °C (null when not reached or the start is below 800 °C). */
   t85: number | null;
   /** λ = t8/5 / 100 s. */
@@ -65,7 +68,7 @@ function figures(result: ConductionResult, at: (i: number) => number, start: num
   return result.probes.map((p, i) => {
     const [c800, c700, c500] = p.crossings;
     const t85 = start >= 800 && c800.time !== null && c500.time !== null ? c500.time - c800.time : null;
-    return { at: at(i), rate700: c700.rate, t85, lambda: t85 === null ? null : t85 / 100 };
+    return { at: at(i), rate700: c700.rate, rate500: c500.rate, t85, lambda: t85 === null ? null : t85 / 100 };
   });
 }
 

@@ -2,7 +2,8 @@
 //  - Lamont's principle (A. Lamont, Iron Age 152 (1943) 64–70): a point of a quenched bar and the point of
 //    the end-quench specimen with the same cooling rate at 700 °C (Lamont: 1300 °F) harden alike; the same
 //    idea with equal t8/5 (time from 800 to 500 °C) is the common alternative (e.g. the SEP 1680 /
-//    continuous-cooling practice; common practice). Both are offered; rate at 700 °C is the default.
+//    continuous-cooling practice; common practice). Both are offered; rate at 700 °C is the default. Equal
+//    cooling rate at 500 °C is offered too: it reproduces the textbook chart readings we could find.
 //  - Grossmann's critical diameter (M. A. Grossmann, Trans. AIME 150 (1942) 227–259): the bar diameter D
 //    that hardens to the same structure at the centre under severity H as the ideal-quench bar of diameter
 //    DI (H = ∞); here found as the D whose centre cools at 700 °C at the rate of the centre of the DI bar
@@ -14,7 +15,7 @@ import { barCooling, specimenCooling, type BarOptions, type CoolingPoint, type C
 import { AUSTENITE } from './materials.ts';
 import { HardenabilityInputError } from '../errors.ts';
 
-export type Criterion = 'rate700' | 't85';
+export type Criterion = 'rate700' | 'rate500' | 't85';
 
 export interface MatchedDistance {
   /** Equivalent distance from the quenched end (mm); null when outside the specimen's usable range. */
@@ -24,7 +25,8 @@ export interface MatchedDistance {
   rangeMm: [number, number];
 }
 
-const figureOf = (p: CoolingPoint, c: Criterion) => (c === 'rate700' ? p.rate700 : p.t85);
+const figureOf = (p: CoolingPoint, c: Criterion) => (c === 'rate700' ? p.rate700 : c === 'rate500' ? p.rate500 : p.t85);
+const falls = (c: Criterion) => c !== 't85';
 
 /** Distances (mm) and figures of the specimen, cut where the figure stops changing monotonically. */
 function usable(specimen: CoolingRun, criterion: Criterion): Array<{ mm: number; v: number }> {
@@ -33,7 +35,7 @@ function usable(specimen: CoolingRun, criterion: Criterion): Array<{ mm: number;
     const v = figureOf(p, criterion);
     if (v === null || !(v > 0)) break;
     const prev = out[out.length - 1];
-    if (prev && (criterion === 'rate700' ? v >= prev.v : v <= prev.v)) break;
+    if (prev && (falls(criterion) ? v >= prev.v : v <= prev.v)) break;
     out.push({ mm: p.at, v });
   }
   return out;
@@ -45,7 +47,7 @@ export function matchDistance(specimen: CoolingRun, figure: number | null, crite
   if (pts.length < 2) throw new HardenabilityInputError('the end-quench computation gave too few usable points');
   const rangeMm: [number, number] = [pts[0].mm, pts[pts.length - 1].mm];
   if (figure === null || !(figure > 0)) return { mm: null, status: 'not_reached', rangeMm };
-  const decreasing = criterion === 'rate700';
+  const decreasing = falls(criterion);
   const first = pts[0].v;
   const last = pts[pts.length - 1].v;
   if (decreasing ? figure >= first : figure <= first) return { mm: null, status: 'nearer_than_first', rangeMm };
@@ -87,6 +89,9 @@ export interface LocationEquivalence {
   byRate: MatchedDistance;
   /** Equivalent distance by equal t8/5. */
   byT85: MatchedDistance;
+  /** Equivalent distance by equal cooling rate at 500 °C. */
+  byRate500: MatchedDistance;
+  rate500: number | null;
 }
 
 export interface BarEquivalence {
@@ -118,6 +123,8 @@ export function barEquivalence(options: EquivalenceOptions): BarEquivalence {
       lambda: p.lambda,
       byRate: matchDistance(specimen, p.rate700, 'rate700'),
       byT85: matchDistance(specimen, p.t85, 't85'),
+      byRate500: matchDistance(specimen, p.rate500, 'rate500'),
+      rate500: p.rate500,
     })),
     bar: { energyImbalance: bar.energyImbalance, steps: bar.steps, cells: bar.cells.nr * bar.cells.nz },
     specimen: { energyImbalance: specimen.energyImbalance, steps: specimen.steps, cells: specimen.cells.nr * specimen.cells.nz },

@@ -37,7 +37,7 @@ interface FormValues {
   severity?: number;
   location: PartLocation;
   hrc: number;
-  criterion: 'rate700' | 't85';
+  criterion: 'rate700' | 'rate500' | 't85';
   austenitize: number;
   di?: number;
 }
@@ -70,6 +70,7 @@ function PartForm(props: { v: FormValues; grades: string[]; mills: string[] }) {
           value={v.criterion}
           options={[
             { value: 'rate700', label: 'cooling rate at 700 °C (Lamont)' },
+            { value: 'rate500', label: 'cooling rate at 500 °C' },
             { value: 't85', label: 'equal t8/5' },
           ]}
         />
@@ -245,7 +246,7 @@ export function partToBandPage(app: Hono<any>, db: Db) {
         severity: optionalNumber(c.req.query('severity'), 'H', { min: 0.01, max: 100 }),
         location: choice(c.req.query('location'), LOCATIONS, 'centre'),
         hrc: optionalNumber(c.req.query('hrc'), 'The hardness', { min: 10, max: 70 }) ?? 40,
-        criterion: choice(c.req.query('criterion'), ['rate700', 't85'] as const, 'rate700'),
+        criterion: choice(c.req.query('criterion'), ['rate700', 'rate500', 't85'] as const, 'rate700'),
         austenitize: optionalNumber(c.req.query('austenitize'), 'The austenitizing temperature', { min: 700, max: 1100 }) ?? 850,
         di: optionalNumber(c.req.query('di'), 'DI', { min: 2, max: 500 }),
       };

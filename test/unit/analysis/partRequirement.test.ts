@@ -33,6 +33,11 @@ describe('estimatePart', () => {
     expect(r.profile.map((p) => p.fraction)).toEqual([0, 0.1, 0.2, 0.3, 0.4, 0.5, 0.6, 0.7, 0.8, 0.9, 1]);
     expect(r.limits.join(' ')).toMatch(/Long round bar only/);
   });
+  it('the three criteria: equal rate at 500 °C sits nearer the quenched end than equal rate at 700 °C (45 mm bar, oil, centre)', () => {
+    const at = (criterion: 'rate700' | 'rate500' | 't85') => estimatePart({ diameterMm: 45, quench: { medium: 'oil' }, location: 'centre', requiredHrc: 40, criterion }).middle.distanceMm!;
+    expect(at('rate500')).toBeLessThan(at('rate700'));
+    expect(at('t85')).toBeGreaterThan(0);
+  });
   it('a location outside the radius or a hardness out of range is refused', () => {
     expect(() => estimatePart({ diameterMm: 45, quench: { medium: 'oil' }, location: 1.2, requiredHrc: 40 })).toThrow(/fraction of the radius/);
     expect(() => estimatePart({ diameterMm: 45, quench: { medium: 'oil' }, location: 'centre', requiredHrc: 80 })).toThrow(/between 10 and 70/);
