@@ -276,6 +276,16 @@ describe('band trials', () => {
     expect(corranTrial.proposed.failingCount).toBeGreaterThan(corranTrial.current.failingCount);
     expect(corranTrial.proposed.perDistance[4]).toMatchObject({ distanceMm: 9, minHrc: 21, maxHrc: 31, n: 80 });
     expect(corranTrial.suggestion.heldShare).toBeGreaterThanOrEqual(0.9);
+    // Whole-curve share from the joint distribution (a share with simulation bounds, never a capped sum),
+    // and a suggestion from tolerance limits with its confidence and an out-of-sample check.
+    expect(corranTrial.proposed.expectedShare.share).toBeGreaterThanOrEqual(0);
+    expect(corranTrial.proposed.expectedShare.upper).toBeLessThanOrEqual(1);
+    expect(corranTrial.proposed).not.toHaveProperty('expectedPpmUpperBound');
+    expect(corranTrial.suggestion).toMatchObject({ targetShare: 0.9, confidence: 0.95 });
+    expect(corranTrial.suggestion.method).toMatch(/ISO 16269-6/);
+    expect(corranTrial.suggestion.outOfSample.fittedOn + corranTrial.suggestion.outOfSample.checkedOn).toBe(corranTrial.suggestion.heatsCounted);
+    const whole = await t.request('POST', '/api/v1/band-trials', { grade: '8620H', distanceSystem: 'mm', points: BAND_8620H, share: 1 });
+    expect(whole.status).toBe(400);
     const invalid = await t.request('POST', '/api/v1/band-trials', { grade: '8620H', distanceSystem: 'mm', points: [{ at: 5, min: 40, max: 30 }] });
     expect(invalid.status).toBe(400);
   });
@@ -287,7 +297,10 @@ describe('period report', () => {
     expect(report.grades.map((g) => g.grade)).toEqual(['8620H']);
     expect(report.suspicious.map((s) => s.heatNumber)).toEqual(expect.arrayContaining(['A-0005', 'A-9005']));
     const html = await renderReportHtml(report);
-    expect(html.match(/<svg/g)!.length).toBe(1 + report.grades[0].charts.length);
+    // Capability, the curve-level level and shape charts the drift alerts run (docs/monitoring.md), then one per distance.
+    expect(report.grades[0].curve?.charts.map((c) => c.kind)).toEqual(['ewma', 't2']);
+    expect(html).toMatch(/Whole curve: what the drift alerts judge/);
+    expect(html.match(/<svg/g)!.length).toBe(1 + 2 + report.grades[0].charts.length);
     expect(html).toContain(REPORT_CAUTION);
     const csv = renderReportCsv(report);
     expect(csv.split('\n')[0]).toMatch(/^section,mill,grade,distance_mm/);

@@ -72,7 +72,7 @@ export function analysisRoutes(app: OpenAPIHono<AppEnv>, db: Db) {
       tags: ['analysis'],
       summary: 'Capability against the band in force, per band distance',
       description:
-        'Cp, Cpk, Pp, Ppk, Cpm with 95 % intervals (method and df named in intervals.method), expected and observed PPM, normality, and flags (small sample, non-normal, unstable). With no mill and several mills: no index over the mixture; each distance carries supply (every mill side by side and the heat-weighted share outside the band with its interval), plus a per-mill breakdown. The band is the one in force on `to` (default today).',
+        'Cp, Cpk, Pp, Ppk, Cpm with 95 % intervals (method and df named in intervals.method), expected and observed PPM, normality judged with the reading resolution (normalityJudgement: grouped chi-square on whole-HRC readings, else Anderson–Darling), a fitted Johnson or Box–Cox distribution with bootstrap intervals when normality is rejected (fitted), the percentile index only from 741 heats, and flags (small sample, non-normal, unstable). With no mill and several mills: no index over the mixture; each distance carries supply (every mill side by side and the heat-weighted share outside the band with its interval), plus a per-mill breakdown. The band is the one in force on `to` (default today).',
       request: {
         query: z.object({
           grade: z.string().min(1),

@@ -27,7 +27,7 @@ export function flagSentences(r: CapabilityResult, _values: readonly number[] = 
     if (r.fitted) {
       const iv = r.fitted.intervals.ppk;
       out.push(
-        `A fitted ${r.fitted.method === 'box-cox' ? `Box–Cox distribution (λ = ${fmt(r.fitted.lambda, 2)})` : `Johnson ${r.fitted.johnson?.family} curve (${r.fitted.choice})`} gives Ppk ${fmt(r.fitted.ppk)}${iv ? ` (95% bootstrap interval ${fmt(iv.lower)} – ${fmt(iv.upper)})` : ''} and ${fmt(r.fitted.expectedPpm, 0)} PPM expected outside (ISO 22514-2 distribution method). A mixture of mills or a drift is not skew: check the per-mill figures and the trend first.`,
+        `A fitted ${r.fitted.method === 'box-cox' ? `Box–Cox distribution (λ = ${fmt(r.fitted.lambda, 2)}; ${r.fitted.choice})` : `Johnson ${r.fitted.johnson?.family} curve (Slifker & Shapiro percentiles)`} gives Ppk ${fmt(r.fitted.ppk)}${iv ? ` (95% bootstrap interval ${fmt(iv.lower)} – ${fmt(iv.upper)})` : ''} and ${fmt(r.fitted.expectedPpm, 0)} PPM expected outside (ISO 22514-2 distribution method). A mixture of mills or a drift is not skew: check the per-mill figures and the trend first.`,
       );
     }
     if (!r.fitted && r.fitProblem) out.push(`No fitted distribution: ${r.fitProblem}. Judge the shape from the histogram and the probability plot.`);
