@@ -14,6 +14,8 @@ import { capabilityStudy, type CapabilityStudy } from './capabilityStudy.ts';
 import { controlChart, type ControlChart } from './controlCharts.ts';
 import { capabilitySpec, controlChartSpec } from './vegaSpecs.ts';
 import { renderSvg } from './svgRender.ts';
+import { seriesMonitoringView } from './monitoringView.ts';
+import { curveCharts } from './curveCharts.ts';
 import { groupByHeat, loadSeriesCurves } from './seriesData.ts';
 import { millDataQuality, type MillDataQuality } from './millDataQuality.ts';
 import { receivingPlans, type ReceivingPlan } from './receivingPlan.ts';
@@ -38,6 +40,8 @@ export interface GradeSection {
   chartProblems: Array<{ distanceMm: number; problem: string }>;
   /** How the mill reports: even-reading preference and too-smooth curves (null with no curves). */
   reporting: MillDataQuality | null;
+  /** The curve-level drift scheme the alerts run, over the heats of the period (level and shape charts). */
+  curve?: { status: string; reason: string | null; statements: string[]; lag1Autocorrelation: number | null; charts: ControlChart[]; episodes: Array<{ cause: string; from: string; castDate: string; heats: number }> } | null;
   /** Laboratory agreement and the re-test plan as of the period's end (src/analysis/receivingPlan.ts). */
   receiving?: ReceivingPlan | null;
 }
@@ -95,6 +99,21 @@ export async function buildPeriodReport(db: Db, request: ReportRequest): Promise
       section.capability = await capabilityStudy(db, { grade, mill: request.mill, from: request.from, to: request.to });
     } catch (error) {
       section.capabilityProblem = (error as Error).message;
+    }
+    try {
+      const view = await seriesMonitoringView(db, { grade, mill: request.mill });
+      const inPeriod = { ...view, points: view.points.filter((p) => p.castDate >= request.from && p.castDate <= request.to) };
+      const charts = curveCharts(inPeriod);
+      section.curve = {
+        status: view.status,
+        reason: view.reason,
+        statements: view.statements,
+        lag1Autocorrelation: view.reference && 'lag1Autocorrelation' in view.reference ? (view.reference.lag1Autocorrelation ?? null) : null,
+        charts: charts ? [charts.level, ...(charts.shape ? [charts.shape] : [])] : [],
+        episodes: view.episodes.filter((e) => e.castDate >= request.from && e.castDate <= request.to),
+      };
+    } catch (error) {
+      section.curve = { status: 'refused', reason: (error as Error).message, statements: [], lag1Autocorrelation: null, charts: [], episodes: [] };
     }
     for (const d of section.capability?.distances ?? []) {
       try {
@@ -157,6 +176,16 @@ export async function renderReportHtml(report: PeriodReport): Promise<string> {
       }
       parts.push('</table>');
       parts.push(`<figure>${await renderSvg(capabilitySpec(g.capability))}</figure>`);
+    }
+    if (g.curve) {
+      parts.push('<h3>Whole curve: what the drift alerts judge</h3>');
+      parts.push(g.curve.status === 'monitoring' ? `<p>${esc(g.curve.statements.join(' '))}</p>` : `<p>Not monitored: ${esc(g.curve.reason)}.</p>`);
+      for (const chart of g.curve.charts) {
+        const what = chart.kind === 't2' ? 'Curve shape (T² of the curve once its level is taken out)' : 'Curve level (EWMA of the mean standardised deviation)';
+        const note = chart.signals.length ? `${what}. Signals: ${chart.signals.map((s) => `${s.description} (heats ${s.heats.slice(0, 8).join(', ')}${s.heats.length > 8 ? ', …' : ''})`).join('; ')}.` : `${what}. No signal in the period.`;
+        parts.push(`<figure>${await renderSvg(controlChartSpec(chart, { width: 760, height: 200 }))}<figcaption>${esc(note)}</figcaption></figure>`);
+      }
+      if (g.charts.length) parts.push('<h3>Per distance (explanation: which distances move; run rules as the alerts use them)</h3>');
     }
     for (const chart of g.charts) {
       const note = chart.signals.length ? `Signals: ${chart.signals.map((s) => `${s.description} (heats ${s.heats.slice(0, 8).join(', ')}${s.heats.length > 8 ? ', …' : ''})`).join('; ')}.` : 'No signal: the series looks steady.';

@@ -1,6 +1,6 @@
 // The Mills overview: for every mill and grade in a cast-date window, the heats, the share inside the
 // band in force on each heat's cast date, the lowest Ppk over the band's distances (with its interval)
-// and the open alerts, plus a trend arrow read from an EWMA chart at that weakest distance. Every number
+// and the open alerts, plus a trend arrow read from the curve-level drift scheme the alerts run. Every number
 // comes from src/analysis or src/hardenability; this module only loads once per grade and arranges.
 import type { Db } from '../../db/connection.ts';
 import { listBands, listGrades } from '../../db/referenceData.ts';
@@ -8,9 +8,9 @@ import { listAlerts } from '../../db/alerts.ts';
 import { toBand } from '../../analysis/bandOf.ts';
 import { capabilityAtBand, type DistanceCapability } from '../../analysis/capabilityStudy.ts';
 import { minimumIndexInterval } from '../../stats/capability.ts';
-import { phaseOneReference, univariateChart } from '../../analysis/controlCharts.ts';
-import { asTest, curvesOfMill, groupByHeat, loadSeriesCurves, millsOf, pointsAt, todayIso, type HeatCurve } from '../../analysis/seriesData.ts';
-import { bandInForce, type Band } from '../../hardenability/bands.ts';
+import { curveSeries } from '../../analysis/curveSeries.ts';
+import { asTest, curvesOfMill, groupByHeat, loadSeriesCurves, millsOf, todayIso } from '../../analysis/seriesData.ts';
+import { bandInForce } from '../../hardenability/bands.ts';
 import { heatConformance } from '../../hardenability/conformance.ts';
 import { assessCurves, peerRepeatability, type MillDataQuality } from '../../analysis/millDataQuality.ts';
 
@@ -75,23 +75,17 @@ export function trendWord(position: number | null, signalled: boolean): TrendWor
   return 'steady';
 }
 
-function trendAt(curves: readonly HeatCurve[], band: Band, lowest: MillGradeRow['lowest'], meta: { grade: string; mill: string }) {
-  if (!lowest) return { trend: 'too few heats' as TrendWord, position: null };
-  const series = pointsAt(curves, lowest.distanceMm);
-  if (series.length < 10) return { trend: 'too few heats' as TrendWord, position: null };
-  try {
-    const reference = phaseOneReference(series, { from: null, to: null });
-    const chart = univariateChart('ewma', series, reference, { ...meta, distanceMm: lowest.distanceMm, label: lowest.label, source: 'mill_certificate' });
-    const last = chart.points[chart.points.length - 1];
-    const centre = chart.centre ?? 0;
-    const half = last.plotted >= centre ? last.ucl - centre : centre - (last.lcl ?? centre);
-    const position = half > 0 ? (last.plotted - centre) / half : 0;
-    const signalled = chart.signals.some((s) => s.points.includes(last.index));
-    void band;
-    return { trend: trendWord(position, signalled), position };
-  } catch {
-    return { trend: 'too few heats' as TrendWord, position: null };
-  }
+/**
+ * The trend word from the curve-level drift scheme the alerts run (src/analysis/curveSeries.ts), at the
+ * newest heat of the whole series: its level EWMA as a share of the designed limit, and whether the
+ * newest heat signals (level or shape).
+ */
+async function trendAt(db: Db, meta: { grade: string; mill: string }) {
+  const series = await curveSeries(db, { grade: meta.grade, mill: meta.mill, source: 'mill_certificate' });
+  const last = series.monitoring.monitored[series.monitoring.monitored.length - 1];
+  if (series.monitoring.status !== 'monitoring' || !last) return { trend: 'too few heats' as TrendWord, position: null };
+  const position = last.point.limit > 0 ? last.point.ewma / last.point.limit : 0;
+  return { trend: trendWord(position, last.point.level !== null || last.point.shape), position };
 }
 
 export async function millsOverview(db: Db, window: { from?: string; to?: string }): Promise<MillsOverview> {
@@ -129,7 +123,7 @@ export async function millsOverview(db: Db, window: { from?: string; to?: string
         else if (verdict === 'fail') failed++;
       }
       const lowest = activeBand ? lowestPpk(capabilityAtBand(certificates, activeBand, { fitted: 'never' })) : null;
-      const { trend, position } = activeBand ? trendAt(certificates, activeBand, lowest, { grade: grade.code, mill }) : { trend: 'too few heats' as TrendWord, position: null };
+      const { trend, position } = await trendAt(db, { grade: grade.code, mill });
       rows.push({
         mill,
         grade: grade.code,

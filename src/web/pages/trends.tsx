@@ -7,6 +7,9 @@ import type { Db } from '../../db/connection.ts';
 import { controlChart, type ChartKind, type ChartParameters, type ControlChart } from '../../analysis/controlCharts.ts';
 import { baselinesOnFile, freezeBaselines } from '../../analysis/baselines.ts';
 import { AnalysisError } from '../../analysis/errors.ts';
+import { seriesMonitoringView } from '../../analysis/monitoringView.ts';
+import { curveCharts } from '../../analysis/curveCharts.ts';
+import { monitoringSettingsFor } from '../../analysis/monitoringSettings.ts';
 import { Caution } from '../components/caution.tsx';
 import { Problem } from '../components/bits.tsx';
 import { SeriesForm } from '../components/seriesForm.tsx';
@@ -37,7 +40,7 @@ function originText(chart: ControlChart): string {
   return `Limits from phase I on the heats shown (trial limits, points beyond them set aside${o.excludedHeats.length ? `: ${o.excludedHeats.length} heat(s)` : ''}). No baseline is frozen for this series.`;
 }
 
-function chartBlock(kit: PageKit, chart: ControlChart, title: string, explain: string): Child {
+function chartBlock(kit: PageKit, chart: ControlChart, title: string, explain: string, id: string = chart.kind): Child {
   const rules = new Map<number, string[]>();
   for (const s of chart.signals) for (const i of s.points) rules.set(i, [...(rules.get(i) ?? []), shortRule(s.rule)]);
   const rows = chart.points.map((p) => ({
@@ -54,11 +57,11 @@ function chartBlock(kit: PageKit, chart: ControlChart, title: string, explain: s
     signals: (rules.get(p.index) ?? []).join(' '),
   }));
   return kit.chart({
-    id: chart.kind,
-    title: `${title}: ${chart.mill} ${chart.grade}${chart.kind === 't2' ? ', whole curve' : `, ${chart.label ?? mmLabel(chart.distanceMm ?? 0)}`}`,
+    id,
+    title: `${title}: ${chart.mill} ${chart.grade}${chart.distanceMm === null ? ', whole curve' : `, ${chart.label ?? mmLabel(chart.distanceMm ?? 0)}`}`,
     note: (
       <>
-        {explain} <span class="origin">{originText(chart)}</span>
+        {explain} {id.startsWith('curve-') ? null : <span class="origin">{originText(chart)}</span>}
       </>
     ),
     spec: pageControlChartSpec(chart),
@@ -158,6 +161,56 @@ export function trendsPage(app: Hono<any>, db: Db) {
         );
       }
     }
+    const monitoring = await seriesMonitoringView(db, { grade: choice.grade, mill: choice.mill });
+    const curve = curveCharts(monitoring);
+    const settings = await monitoringSettingsFor(db, choice.grade);
+    const perDistanceAlerts = settings.ewma.enabled || settings.cusum.enabled || settings.t2.enabled || settings.nelson.enabled;
+    const curveBlock = (
+      <section id="whole-curve">
+        <h2>Whole curve: what the drift alerts judge</h2>
+        <p>
+          {monitoring.status === 'monitoring'
+            ? `Monitoring against ${monitoring.reference?.origin?.type === 'frozen_baseline' ? `frozen baseline #${monitoring.reference.origin.baselineId}` : `the first ${monitoring.reference?.heats ?? ''} complete curves of the series`}` +
+              (monitoring.reference && 'from' in monitoring.reference ? ` (cast ${monitoring.reference.from} to ${monitoring.reference.to})` : '') +
+              `, over ${monitoring.distances.length} distances.`
+            : `Not monitored yet: ${monitoring.reason}.`}
+        </p>
+        {monitoring.reference && 'lag1Autocorrelation' in monitoring.reference ? (
+          <p id="autocorrelation">
+            Lag-1 autocorrelation of the curve level over the reference: <strong>{fmt(monitoring.reference.lag1Autocorrelation ?? null, 2)}</strong>
+            {monitoring.reference.autocorrelationTreated ? ' (material: the level chart runs on the residuals of an AR(1) fit).' : ' (below the threshold: charted as it is).'}
+          </p>
+        ) : null}
+        {monitoring.statements.length ? (
+          <ul class="statements">
+            {monitoring.statements.map((t) => (
+              <li>{t}</li>
+            ))}
+          </ul>
+        ) : null}
+        {curve ? (
+          <>
+            {chartBlock(kit, curve.level, 'Curve level', 'EWMA of the mean standardised deviation of the curve (each distance against its reference mean and SD): above the upper limit the curve is harder as a whole, below the lower softer.', 'curve-level')}
+            {curve.shape ? chartBlock(kit, curve.shape, 'Curve shape', 'T² of what is left of the curve once its level is taken out: above the limit the curve has a form its reference did not show.', 'curve-shape') : null}
+          </>
+        ) : null}
+        {monitoring.episodes.length
+          ? kit.table('episodes', `Signal episodes ${choice.mill} ${choice.grade}`, {
+              columns: [
+                { key: 'what', label: 'Signal' },
+                { key: 'from', label: 'From heat' },
+                { key: 'castDate', label: 'Cast' },
+                { key: 'heats', label: 'Heats signalling', numeric: true },
+                { key: 'last', label: 'Last heat' },
+              ],
+              rows: monitoring.episodes.map((e) => ({ ...e, what: shortRule(e.cause === 'shape' ? 'curve_shape' : e.cause === 'level:high' ? 'curve_level_high' : 'curve_level_low') })),
+            })
+          : null}
+        <p>
+          <a href={`/monitoring${query({ grade: choice.grade })}`}>Monitoring settings of {choice.grade}</a>
+        </p>
+      </section>
+    );
     const signals = charts.flatMap((ch) => ch.signals.map((s) => ({ chart: ch.kind, rule: s.rule, short: shortRule(s.rule), description: s.description, count: s.points.length, heats: s.heats.join(', ') })));
     const baselines = await baselinesOnFile(db, { grade: choice.grade, mill: choice.mill });
     const first = charts[0]?.points;
@@ -190,6 +243,13 @@ export function trendsPage(app: Hono<any>, db: Db) {
             )}
           </p>
           <Caution>A signal says the process changed, not that a heat is bad: talk with the mill and look at the heat sheet. Acceptance follows the purchase specification and qualified personnel.</Caution>
+          {curveBlock}
+          <h2>Per distance</h2>
+          <p class="note" id="per-distance-view">
+            {perDistanceAlerts
+              ? 'Per-distance charts with the settings the alert rules use for this grade.'
+              : 'Explanation: which distances move. The drift alerts judge the whole curve (above); the per-distance rules are off for this grade, so a signal drawn here is a looser view, not an alert.'}
+          </p>
           {blocks}
           <h2>Signals</h2>
           {kit.table('signals', `Signals ${choice.mill} ${choice.grade}`, {
