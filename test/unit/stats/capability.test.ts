@@ -77,6 +77,14 @@ describe('capability indices (ISO 22514-2; NIST/SEMATECH e-Handbook §6.1.6)', (
     expect(forced.percentile!.interval).toBeNull();
     expect(forced.fitted).toBeNull();
     expect(capability({ values: x }, { lsl: 30, usl: 42 }).percentile).toBeNull();
+    // From 741 values (ISO 22514-2 empirical percentiles reach the 0.135 % tails): given in 'auto', with a
+    // bootstrap interval around it.
+    const longSkewed = Array.from({ length: 1000 }, (_, i) => 30 + 10 * ((i * 617) % 1000 / 1000) ** 4);
+    const l = capability({ values: longSkewed }, { lsl: 29, usl: 45 });
+    expect(l.flags.nonNormal).toBe(true);
+    expect(l.flags.percentileFewData).toBe(false);
+    expect(l.percentile!.interval!.lower).toBeLessThanOrEqual(l.percentile!.ppk);
+    expect(l.percentile!.interval!.upper).toBeGreaterThanOrEqual(l.percentile!.ppk);
     // Readings on only 4 lattice values: no shape to fit (our rule: at least 8 distinct values), said so.
     const coarse = Array.from({ length: 120 }, (_, i) => 55 + (i % 7 === 0 ? 3 : i % 3));
     const c = capability({ values: coarse }, { lsl: 50, usl: 60 }, { fitted: 'always' });
