@@ -59,7 +59,16 @@ export interface DistanceModel {
   rmse: number;
   cvRmse: number;
   vif: Array<{ name: string; vif: number }>;
+  /** Largest leverage (hat value) among the training heats: a new heat beyond it is a hidden extrapolation. */
+  maxLeverage?: number;
   comparison: PublishedComparison;
+}
+
+/** Range of one predictor over the heats the model was trained on. */
+export interface PredictorRange {
+  name: string;
+  min: number;
+  max: number;
 }
 
 export interface ResidualCorrelation {
@@ -75,6 +84,8 @@ export interface FittedModel {
   seed: number;
   distances: DistanceModel[];
   skippedDistances: Array<{ distanceMm: number; reason: string }>;
+  /** Each predictor's range over the training heats (absent on models fitted before it was kept). */
+  trainingRanges?: PredictorRange[];
   residualCorrelation: ResidualCorrelation | null;
   heatCount: number;
 }
@@ -187,6 +198,7 @@ export function fitChemistryModel(curves: readonly HeatCurve[], options: FitOpti
       rmse: fit.sigma,
       cvRmse: cv.rmse,
       vif: fit.diagnostics?.vif ?? [],
+      maxLeverage: Math.max(...(fit.diagnostics?.leverage ?? [1])),
       comparison: {
         heats: compared.length,
         heatIds: compared,
@@ -200,6 +212,12 @@ export function fitChemistryModel(curves: readonly HeatCurve[], options: FitOpti
     });
   }
   if (fits.length === 0) throw insufficientData('no distance has enough heats for a model', { skippedDistances });
+  const trainedIds = new Set(fits.flatMap((f) => f.heatIds));
+  const trained = usable.filter((h) => trainedIds.has(h.heatId));
+  const trainingRanges = predictors.map((name) => {
+    const values = trained.map((h) => predictorValue(h, name)!);
+    return { name, min: Math.min(...values), max: Math.max(...values) };
+  });
   return {
     predictors,
     dropped,
@@ -207,6 +225,7 @@ export function fitChemistryModel(curves: readonly HeatCurve[], options: FitOpti
     seed,
     distances: fits,
     skippedDistances,
+    trainingRanges,
     residualCorrelation: residualCorrelation(fits.map((f) => f.distanceMm), residuals),
     heatCount: new Set(fits.flatMap((f) => f.heatIds)).size,
   };

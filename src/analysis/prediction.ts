@@ -28,6 +28,7 @@ import { tCdf, tQuantile } from '../stats/distributions.ts';
 import { createRng } from '../stats/random.ts';
 import type { Band } from '../hardenability/bands.ts';
 import type { Chemistry } from '../hardenability/types.ts';
+import { predictionCeiling } from '../hardenability/martensite.ts';
 import { bandOn, bandSummary, labelFor, type BandSummary } from './bandOf.ts';
 import { invalidInput, notFound } from './errors.ts';
 import { minHeatsFor, predictorValue, DEFAULT_PREDICTORS, type Predictor, type StoredModel, type DistanceModel } from './chemistryModel.ts';
@@ -65,6 +66,8 @@ export interface PredictedPointView {
   /** Probability of this point meeting its band limits (null: no limit here or no SD). */
   probabilityInBand: number | null;
   method: string;
+  /** The estimate was above IH(C), the fully martensitic hardness for the carbon, and was lowered to it. */
+  cappedAtMartensite?: boolean;
 }
 
 export interface WholeBandProbability {
@@ -102,12 +105,30 @@ export interface PublishedError {
 /** Fewest heats at a distance for a bias-corrected published interval. */
 export const MIN_PUBLISHED_HEATS = 5;
 
+/**
+ * Whether a plant-model prediction reaches outside the data the model learnt from (Montgomery, Peck &
+ * Vining, Introduction to Linear Regression Analysis, §3.8 "hidden extrapolation"): a predictor outside
+ * its training range, or a chemistry combination whose leverage h₀₀ = x₀ᵀ(XᵀX)⁻¹x₀ exceeds the largest
+ * leverage among the training heats, although each predictor is inside its range.
+ */
+export interface ExtrapolationCheck {
+  /** False for models fitted before training ranges and leverages were kept (refit to check). */
+  known: boolean;
+  outsideRange: Array<{ name: string; value: number; min: number; max: number }>;
+  /** Distances where h₀₀ exceeds the largest training leverage there. */
+  beyondLeverage: Array<{ distanceMm: number; leverage: number; maxTrainingLeverage: number }>;
+  /** True when either list is non-empty: the interval assumes a model that was never checked there. */
+  extrapolating: boolean;
+}
+
 export interface CurvePrediction {
   answeredBy: AnsweredBy;
   level: number;
   band: BandSummary | null;
   points: PredictedPointView[];
   wholeBand: WholeBandProbability | null;
+  /** Plant model only: whether the chemistry lies outside what the model was trained on. */
+  extrapolation?: ExtrapolationCheck;
   notes: string[];
 }
 
@@ -185,8 +206,12 @@ function designRow(model: StoredModel, input: PredictionInput): number[] {
   return [1, ...model.predictors.map((p) => predictorValue({ chemistry: input.chemistry, grainSize: input.grainSize }, p as Predictor)!)];
 }
 
-function pointFromFit(fit: DistanceModel, row: number[], level: number, band: Band | null): PredictedPointView {
-  const hrc = fit.coefficients.reduce((s, c, i) => s + c.estimate * row[i], 0);
+function pointFromFit(fit: DistanceModel, row: number[], level: number, band: Band | null, ceiling: number | null): PredictedPointView {
+  const estimate = fit.coefficients.reduce((s, c, i) => s + c.estimate * row[i], 0);
+  // No steel of this carbon is harder than fully martensitic: a linear model can answer above it
+  // when it extrapolates (the estimate is then replaced by the physical bound, and marked).
+  const capped = ceiling !== null && estimate > ceiling;
+  const hrc = capped ? ceiling : estimate;
   let q = 0;
   for (let a = 0; a < row.length; a++) for (let b = 0; b < row.length; b++) q += row[a] * fit.covariance[a][b] * row[b];
   const sd = Math.sqrt(fit.rmse * fit.rmse + q);
@@ -212,7 +237,51 @@ function pointFromFit(fit: DistanceModel, row: number[], level: number, band: Ba
     maxHrc,
     probabilityInBand,
     method: 'plant model (OLS)',
+    ...(capped ? { cappedAtMartensite: true } : {}),
   };
+}
+
+/** Leverage of a new row at one distance: x₀ᵀ(XᵀX)⁻¹x₀ = x₀ᵀCx₀ / σ², C the coefficient covariance σ²(XᵀX)⁻¹. */
+export function leverageOf(fit: DistanceModel, row: readonly number[]): number {
+  let q = 0;
+  for (let a = 0; a < row.length; a++) for (let b = 0; b < row.length; b++) q += row[a] * fit.covariance[a][b] * row[b];
+  return q / (fit.rmse * fit.rmse);
+}
+
+/** Training ranges and leverages of a stored model against one chemistry (pure). */
+export function extrapolationCheck(model: StoredModel, input: PredictionInput, row: readonly number[]): ExtrapolationCheck {
+  const ranges = model.fits.trainingRanges;
+  const outsideRange: ExtrapolationCheck['outsideRange'] = [];
+  for (const r of ranges ?? []) {
+    const value = predictorValue({ chemistry: input.chemistry, grainSize: input.grainSize }, r.name as Predictor);
+    if (value !== undefined && (value < r.min - 1e-12 || value > r.max + 1e-12)) outsideRange.push({ name: r.name, value, min: r.min, max: r.max });
+  }
+  const beyondLeverage: ExtrapolationCheck['beyondLeverage'] = [];
+  for (const fit of model.fits.distances) {
+    if (fit.maxLeverage === undefined) continue;
+    const leverage = leverageOf(fit, row);
+    if (leverage > fit.maxLeverage * (1 + 1e-9)) beyondLeverage.push({ distanceMm: fit.distanceMm, leverage, maxTrainingLeverage: fit.maxLeverage });
+  }
+  const known = ranges !== undefined && model.fits.distances.every((f) => f.maxLeverage !== undefined);
+  return { known, outsideRange, beyondLeverage, extrapolating: outsideRange.length > 0 || beyondLeverage.length > 0 };
+}
+
+function extrapolationNotes(x: ExtrapolationCheck): string[] {
+  const notes: string[] = [];
+  if (!x.known) notes.push('this model was fitted before training ranges were kept: refit it to learn whether this chemistry lies outside its data');
+  if (x.outsideRange.length) {
+    notes.push(
+      `outside the model's training data: ${x.outsideRange.map((r) => `${r.name} ${Number(r.value.toFixed(4))} (trained on ${Number(r.min.toFixed(4))}–${Number(r.max.toFixed(4))})`).join(', ')}; ` +
+        'the prediction and its interval are an extrapolation, not a checked estimate',
+    );
+  }
+  if (x.beyondLeverage.length) {
+    const worst = x.beyondLeverage.reduce((m, b) => (b.leverage / b.maxTrainingLeverage > m.leverage / m.maxTrainingLeverage ? b : m));
+    notes.push(
+      `this combination of elements is unlike any training heat (leverage ${worst.leverage.toFixed(3)} at ${worst.distanceMm} mm against at most ${worst.maxTrainingLeverage.toFixed(3)} among them${x.outsideRange.length ? '' : ', although each element is inside its range'}): hidden extrapolation`,
+    );
+  }
+  return notes;
 }
 
 function wholeBandFor(points: PredictedPointView[], band: Band | null, correlation: { distancesMm: number[]; matrix: number[][] } | null, options: PredictionOptions): WholeBandProbability | null {
@@ -243,8 +312,13 @@ function wholeBandFor(points: PredictedPointView[], band: Band | null, correlati
 export function predictWithModel(model: StoredModel, input: PredictionInput, band: Band | null, options: PredictionOptions = {}): CurvePrediction {
   const level = options.level ?? 0.95;
   const row = designRow(model, input);
-  const points = monotonePoints(model.fits.distances.map((f) => pointFromFit(f, row, level, band)));
-  const notes: string[] = [];
+  const ceiling = fullyMartensiticCeiling(input.chemistry);
+  const points = monotonePoints(model.fits.distances.map((f) => pointFromFit(f, row, level, band, ceiling)));
+  const extrapolation = extrapolationCheck(model, input, row);
+  const notes: string[] = extrapolationNotes(extrapolation);
+  if (points.some((p) => p.cappedAtMartensite)) {
+    notes.push(`the model answered above ${ceiling!.toFixed(1)} HRC, the fully martensitic hardness for ${input.chemistry.C} % C (ASTM A255 IH + 1 HRC), at some distances: capped there`);
+  }
   if (points.some((p) => p.adjustedForMonotonicity)) notes.push('the fitted curve rose with distance somewhere; it was made non-increasing (PAVA)');
   const wholeBand = wholeBandFor(points, band, model.residualCorrelation, options);
   if (wholeBand?.notCovered.length) notes.push(`band points at ${wholeBand.notCovered.join(', ')} mm are not covered by the model and are left out of the whole-band probability`);
@@ -264,8 +338,14 @@ export function predictWithModel(model: StoredModel, input: PredictionInput, ban
     band: band ? bandSummary(band) : null,
     points,
     wholeBand,
+    extrapolation,
     notes,
   };
+}
+
+/** IH(C) + PREDICTION_ABOVE_IH_HRC (martensite.ts), or null when the carbon is missing or outside where IH is usable. */
+function fullyMartensiticCeiling(chemistry: Chemistry): number | null {
+  return predictionCeiling(chemistry.C);
 }
 
 /** Error of the published predictor on a history, per distance: n, bias, sample SD and RMSE of observed − published. */

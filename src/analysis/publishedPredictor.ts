@@ -4,8 +4,9 @@
 //    placing tolerance), the ASTM A255 initial hardness IH(C), where A255 sets the dividing factor to 1;
 //  - from 4/16 in (6.35 mm) to 32/16 in (50.8 mm), Just (1969), inch form, with its composition-range
 //    flags kept beside each value;
-//  - every value capped at IH(C), the hardness of fully martensitic steel of that carbon (a regression
-//    answering above it predicts something no steel of that carbon can show);
+//  - every value capped at IH(C) + 1 HRC, the fully martensitic hardness of that carbon with the margin
+//    by which published bands centre their quenched end above it (martensite.ts): a regression answering
+//    above it predicts something no steel of that carbon shows on average;
 //  - nothing between the quenched end and 6.35 mm, nothing past 50.8 mm, and nothing beyond the quenched
 //    end for boron-treated steel (neither method has a boron factor): those distances are listed as
 //    missing with the reason, never clamped or extrapolated.
@@ -13,7 +14,7 @@
 // hand are a secondary polynomial set that misses published bands (see src/hardenability/astmA255.ts).
 import { BORON_TREATED_FROM, QUENCHED_END_MAX_MM } from '../hardenability/astmA255.ts';
 import { predictJust1969 } from '../hardenability/just1969.ts';
-import { martensiteBounds } from '../hardenability/martensite.ts';
+import { martensiteBounds, PREDICTION_ABOVE_IH_HRC } from '../hardenability/martensite.ts';
 import type { Chemistry } from '../hardenability/types.ts';
 
 export interface PublishedPoint {
@@ -46,18 +47,19 @@ export function publishedCurve(chemistry: Chemistry, grainSize: number | null, d
   const wanted = [...new Set(distancesMm)].sort((a, b) => a - b);
   if (wanted.length === 0) return { points, missing, warnings };
   const carbon = chemistry.C;
-  let ceiling: number | null = null;
+  let ih: number | null = null;
   let noCeiling = '';
   if (carbon === undefined) noCeiling = 'carbon not reported';
   else {
     try {
       const bounds = martensiteBounds(carbon);
-      ceiling = bounds.fullyMartensiticHrc;
+      ih = bounds.fullyMartensiticHrc;
       for (const f of bounds.outOfRange) if (f.quantity.startsWith('C (fully')) warnings.push(`quenched end: C ${carbon} % ${f.note}`);
     } catch (error) {
       noCeiling = (error as Error).message;
     }
   }
+  const ceiling = ih === null ? null : ih + PREDICTION_ABOVE_IH_HRC;
   const boron = options.boronTreated === true || (chemistry.B ?? 0) >= BORON_TREATED_FROM;
   if (grainSize !== null && grainSize !== 7) {
     // Just's inch form has no grain-size term; A255's IH does not depend on grain size.
@@ -66,8 +68,8 @@ export function publishedCurve(chemistry: Chemistry, grainSize: number | null, d
 
   const quenchedEnd = wanted.filter((d) => d <= QUENCHED_END_MAX_MM);
   for (const mm of quenchedEnd) {
-    if (ceiling === null) missing.push({ mm, reason: `ASTM A255 initial hardness: ${noCeiling}` });
-    else points.set(mm, { mm, hrc: ceiling, method: QUENCHED_END_METHOD, source: QUENCHED_END_SOURCE });
+    if (ih === null) missing.push({ mm, reason: `ASTM A255 initial hardness: ${noCeiling}` });
+    else points.set(mm, { mm, hrc: ih, method: QUENCHED_END_METHOD, source: QUENCHED_END_SOURCE });
   }
   const beyond = wanted.filter((d) => d > QUENCHED_END_MAX_MM);
   if (beyond.length === 0) return { points, missing, warnings };
@@ -95,7 +97,7 @@ export function publishedCurve(chemistry: Chemistry, grainSize: number | null, d
     for (const mm of beyond) missing.push({ mm, reason: `Just (1969): ${(error as Error).message}` });
   }
   if ([...points.values()].some((p) => p.cappedAtMartensite)) {
-    warnings.push(`Just (1969) answered above ${ceiling.toFixed(1)} HRC, the fully martensitic hardness for ${carbon} % C (ASTM A255 IH), at some distances: capped there`);
+    warnings.push(`Just (1969) answered above ${ceiling.toFixed(1)} HRC, the fully martensitic hardness for ${carbon} % C (ASTM A255 IH ${ih!.toFixed(1)} + ${PREDICTION_ABOVE_IH_HRC}), at some distances: capped there`);
   }
   return { points, missing, warnings };
 }

@@ -30,6 +30,29 @@ export function initialHardness(carbon: number): number {
   return 33.087 + 50.723 * c + 33.662 * c ** 2 - 2.7048 * c ** 3 - 107.02 * c ** 4 + 43.523 * c ** 5;
 }
 
+// How far quenched-end readings and predictions sit from IH(C), read off published H-bands (SAE J1268
+// 8620H, 4140H, 4340H, 5120H; EN 10084 20MnCr5+H, 16MnCr5+H; EN 10083-3 42CrMo4+H; the 8620H and
+// 20MnCr5+H bands high confidence, the others from memory). Each band's quenched-end window spans its
+// carbon range plus scatter: the midpoint of the window sits within 0.9 HRC of IH at the middle carbon
+// (20MnCr5+H the most, +0.9), the maximum exceeds IH at the grade's maximum carbon by 1.6-3.4 HRC
+// (20MnCr5+H +3.4), and exceeds IH at its minimum carbon by up to 6.4 HRC (20MnCr5+H).
+
+/** An expected (mean) quenched-end hardness more than this above IH(C) is beyond every published band's centre. */
+export const PREDICTION_ABOVE_IH_HRC = 1;
+/** A reading this far above IH(C) is still inside a published band for a heat at the grade's maximum carbon. */
+export const QUENCHED_END_WARN_ABOVE_IH_HRC = 3.5;
+/** Beyond this over IH(C) a reading exceeds even a band maximum read against the grade's minimum carbon. */
+export const QUENCHED_END_FAIL_ABOVE_IH_HRC = 7;
+
+/**
+ * The highest value a predicted (expected) hardness may take for a carbon content: IH(C) plus
+ * PREDICTION_ABOVE_IH_HRC; null where the IH polynomial is not usable (carbon outside 0.05-0.80 %).
+ */
+export function predictionCeiling(carbon: number | undefined): number | null {
+  if (carbon === undefined || !Number.isFinite(carbon) || carbon < MARTENSITE_CARBON_DOMAIN.min || carbon > MARTENSITE_CARBON_DOMAIN.max) return null;
+  return initialHardness(carbon) + PREDICTION_ABOVE_IH_HRC;
+}
+
 /** HRC of 50 % martensite (Hodge & Orehoski 1946 table, quadratic fit; from memory). */
 export function halfMartensiteHardness(carbon: number): number {
   assertCarbon(carbon);

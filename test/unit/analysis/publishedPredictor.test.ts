@@ -102,7 +102,7 @@ describe('what the published predictor answers, and where it does not', () => {
 
   it('is capped at the fully martensitic hardness (0.6 % C high alloy), and gives nothing where no cap exists (52100-type 1.0 % C)', () => {
     const c = publishedCurve({ C: 0.6, Mn: 1.0, Si: 0.3, Cr: 1.5, Mo: 0.5, Ni: 1.0 }, 7, [J(4), J(8), J(16)]);
-    for (const p of c.points.values()) expect(p.hrc).toBeLessThanOrEqual(initialHardness(0.6) + 1e-9);
+    for (const p of c.points.values()) expect(p.hrc).toBeLessThanOrEqual(initialHardness(0.6) + 1 + 1e-9);
     expect([...c.points.values()].some((p) => p.cappedAtMartensite)).toBe(true);
     expect(c.warnings.join(' ')).toMatch(/capped/);
     const bearing = publishedCurve({ C: 1.0, Mn: 0.35, Si: 0.25, Cr: 1.45 }, 7, [1.5, J(8)]);
