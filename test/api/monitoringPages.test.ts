@@ -32,3 +32,29 @@ describe('heat review with a frozen baseline', () => {
     expect(page.status).toBe(200);
   });
 });
+
+describe('pages show what the drift alerts judge', () => {
+  test('Trends shows the whole-curve scheme first, its reference and lag-1 autocorrelation, and marks per-distance charts as explanation', async () => {
+    const r = await t.request('GET', '/trends?grade=8620H&mill=BRACKWELL&distance=9');
+    expect(r.status).toBe(200);
+    const html = String(r.body);
+    expect(html).toMatch(/Whole curve: what the drift alerts judge/);
+    expect(html).toMatch(/Lag-1 autocorrelation of the curve level over the reference/);
+    expect(html).toMatch(/frozen baseline #/);
+    expect(html).toMatch(/per-distance rules are off for this grade, so a signal drawn here is a looser view/);
+    expect(html).not.toMatch(/\bN[1-8]\b/);
+  });
+
+  test('the monitoring settings page shows the defaults and saves a new version from its form', async () => {
+    const page = await t.request('GET', '/monitoring?grade=8620H');
+    expect(page.status).toBe(200);
+    expect(String(page.body)).toMatch(/deployment’s defaults are in force/);
+    const form = new URLSearchParams({ grade: '8620H', 'curve.enabled': 'on', 'curve.yearsPerFalseAlarm': '4', 'curve.lambda': '0.1', 'curve.referenceHeats': '100', 'curve.minReferenceHeats': '30', 'curve.guarantee': '0.9', 'curve.autocorrelationThreshold': '0.2', 'curve.heatsPerYear': '', reason: 'four-year budget' });
+    const saved = await t.request('POST', '/monitoring', form.toString(), { 'content-type': 'application/x-www-form-urlencoded', origin: 'http://localhost' });
+    expect(saved.status).toBe(303);
+    const config = await t.request('GET', '/api/v1/monitoring/8620H');
+    expect(config.body.version).toMatchObject({ version: 1, reason: 'four-year budget' });
+    expect(config.body.inForce.curve).toMatchObject({ yearsPerFalseAlarm: 4, heatsPerYear: null, enabled: true });
+    expect(config.body.inForce.ewma.enabled).toBe(false);
+  });
+});
