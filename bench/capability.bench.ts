@@ -98,7 +98,7 @@ for (const n of [50, 100, 300]) {
 // 5. Supply share: two mills, one near each limit; coverage of the generalized interval.
 {
   const rng = createRng(600);
-  const reps = 400;
+  const reps = 1000;
   const band = { lsl: 31, usl: 43 };
   const truth = (60 * (normalCdf(-3.1) + normalCdf(-8.9)) + 40 * (normalCdf(-2 / 1.2) + normalCdf(-10 / 1.2))) / 100;
   let cover = 0;
