@@ -41,6 +41,7 @@ const PAGES: PageCase[] = [
   { name: 'capability', path: () => '/capability?grade=4140-D&mill=VARNHOLT', minCharts: 3, caution: true },
   { name: 'chemistry', path: () => '/chemistry?grade=20MnCr5-D', minCharts: 4, caution: true },
   { name: 'band-trial', path: () => '/band-trial?grade=20MnCr5-D&run=1&at=1.5&min=41&max=48&at=7&min=30&max=40', minCharts: 2, caution: true },
+  { name: 'receiving', path: () => '/receiving?grade=18CrNiMo7-D&mill=QUELLMARK', minCharts: 2, caution: true },
 ];
 
 describe('pages on the demo data', () => {
