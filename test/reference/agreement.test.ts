@@ -113,6 +113,28 @@ describe('gauge R&R by ANOVA against statsmodels (agreement_reference.py)', () =
     expect(g.components.repeatability.variance).toBeCloseTo(sumD2 / (2 * byPart.size), 12);
   });
 
+  it('Montgomery Example 8.7 (Houf & Berman 1988 thermal impedance, 10 parts × 3 operators × 3): mean squares and variance components', () => {
+    const c = caseOf('houf');
+    const g = gaugeStudy(c.readings);
+    const line = (s: string) => g.anova.find((a) => a.source === s)!;
+    // Sums of squares against statsmodels anova_lm (agreement_reference.py).
+    expect(rel(line('part').ss, c.ss.part)).toBeLessThan(1e-10);
+    expect(rel(line('part×operator').ss, c.ss.interaction)).toBeLessThan(1e-10);
+    expect(rel(line('repeatability').ss, c.ss.error)).toBeLessThan(1e-10);
+    expect(g.interactionPooled).toBe(false); // interaction p ≈ 5e-7 (statsmodels)
+    // Printed in Montgomery's example (values from memory, matching the statsmodels mean squares above to
+    // the printed digits): MS 437.33, 19.63, 2.70, 0.51; σ²_P 48.29, σ²_O 0.56, σ²_PO 0.73, σ² 0.51,
+    // gauge σ² 1.80.
+    expect(line('part').ms).toBeCloseTo(437.33, 2);
+    expect(line('operator').ms).toBeCloseTo(19.63, 2);
+    expect(line('part×operator').ms).toBeCloseTo(2.7, 2);
+    expect(line('repeatability').ms).toBeCloseTo(0.51, 2);
+    expect(g.components.part.variance).toBeCloseTo(48.29, 2);
+    expect(g.components.operator.variance).toBeCloseTo(0.56, 2);
+    expect(g.components.interaction.variance).toBeCloseTo(0.73, 2);
+    expect(g.components.gaugeRR.variance).toBeCloseTo(1.8, 1);
+  });
+
   it('refuses an unbalanced study with the cell named', () => {
     const c = caseOf('crossed');
     expect(() => gaugeStudy(c.readings.slice(1))).toThrow(/balanced: part P1, operator O1 has 2/);

@@ -90,6 +90,30 @@ def gauge_case(seed, parts, ops, reps, sd_part, sd_op, sd_po, sd_e, pooled=False
     return out
 
 
+# Houf & Berman (1988) thermal impedance gauge study, 10 parts x 3 operators x 3 readings: the data of
+# Montgomery, Introduction to Statistical Quality Control, Example 8.7 (as printed in the SAS/STAT
+# PROC VARCOMP documentation, Example 2 "Using the GRR Method"), part, operator, reading.
+HOUF = """1 1 37 1 1 38 1 1 37 1 2 41 1 2 41 1 2 40 1 3 41 1 3 42 1 3 41
+2 1 42 2 1 41 2 1 43 2 2 42 2 2 42 2 2 42 2 3 43 2 3 42 2 3 43
+3 1 30 3 1 31 3 1 31 3 2 31 3 2 31 3 2 31 3 3 29 3 3 30 3 3 28
+4 1 42 4 1 43 4 1 42 4 2 43 4 2 43 4 2 43 4 3 42 4 3 42 4 3 42
+5 1 28 5 1 30 5 1 29 5 2 29 5 2 30 5 2 29 5 3 31 5 3 29 5 3 29
+6 1 42 6 1 42 6 1 43 6 2 45 6 2 45 6 2 45 6 3 44 6 3 46 6 3 45
+7 1 25 7 1 26 7 1 27 7 2 28 7 2 28 7 2 30 7 3 29 7 3 27 7 3 27
+8 1 40 8 1 40 8 1 40 8 2 43 8 2 42 8 2 42 8 3 43 8 3 43 8 3 41
+9 1 25 9 1 25 9 1 25 9 2 27 9 2 29 9 2 28 9 3 26 9 3 26 9 3 26
+10 1 35 10 1 34 10 1 34 10 2 35 10 2 35 10 2 34 10 3 35 10 3 34 10 3 35"""
+
+
+def houf_case():
+    v = [int(x) for x in HOUF.split()]
+    rows = [{"part": f"P{v[i]}", "operator": f"O{v[i + 1]}", "value": v[i + 2]} for i in range(0, len(v), 3)]
+    df = pd.DataFrame(rows)
+    table = sm.stats.anova_lm(smf.ols("value ~ C(part) * C(operator)", data=df).fit(), typ=2)
+    ss = {k: float(table.loc[n, "sum_sq"]) for k, n in [("part", "C(part)"), ("operator", "C(operator)"), ("interaction", "C(part):C(operator)"), ("error", "Residual")]}
+    return {"readings": rows, "ss": ss, "interactionP": float(table.loc["C(part):C(operator)", "PR(>F)"])}
+
+
 def main():
     # MixedLM warns while it tries optimisers; the estimates are checked against the ANOVA identities in the test.
     warnings.simplefilter("ignore")
@@ -103,6 +127,7 @@ def main():
             "pooled": gauge_case(17006, 10, 3, 2, 3.0, 0.5, 0.0, 0.4, pooled=True),
             # One laboratory, duplicate tests.
             "oneOperator": gauge_case(17003, 12, 1, 2, 2.5, 0.0, 0.0, 0.5),
+            "houf": houf_case(),
         },
     }
     here = os.path.dirname(os.path.abspath(__file__))
