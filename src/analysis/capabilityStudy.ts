@@ -85,7 +85,7 @@ export interface CapabilityStudyOptions {
   minN?: number;
   /** Degrees of freedom of the within sigma in the Cp/Cpk intervals (src/stats/capability.ts). */
   intervalDf?: IntervalDfChoice;
-  /** Box–Cox fitted indices when normality is rejected (default 'auto'; 'never' for quick summaries). */
+  /** Fitted-distribution (Johnson or Box–Cox) indices when normality is rejected (default 'auto'; 'never' for quick summaries). */
   fitted?: 'auto' | 'never';
 }
 
