@@ -7,7 +7,7 @@ import { gradedFaces, solveConduction } from '../../../../src/hardenability/quen
 import { barCooling, specimenCooling, type CoolingRun } from '../../../../src/hardenability/quench/cooling.ts';
 import { barEquivalence, criticalDiameter, matchDistance } from '../../../../src/hardenability/quench/equivalence.ts';
 import { lambdaOf, meanRate85 } from '../../../../src/hardenability/quench/coolingParameter.ts';
-import { filmCoefficient, severityFor } from '../../../../src/hardenability/quench/severity.ts';
+import { filmCoefficient, severityFor, SEVERITY_TABLE } from '../../../../src/hardenability/quench/severity.ts';
 import { bisect, cylinderFoAt, cylinderThetaRate, erf } from './analytic.ts';
 
 const k = 25;
@@ -137,6 +137,30 @@ describe('physics of the equivalence (issue 18 invariants)', () => {
   it('H converts to h = 2Hk (Grossmann; ASM Handbook Vol. 4)', () => {
     // H = 1 in⁻¹ with k = 25 W/(m·K): h = 2 × 39.37 × 25 = 1968.5 W/(m²·K).
     expect(filmCoefficient(1, steel)).toBeCloseTo(1968.5, 1);
+  });
+});
+
+describe('quench severity table (ASM Handbook Vol. 4 after Grossmann, from memory)', () => {
+  it('states ranges that rise with agitation and from air to oil, water and brine', () => {
+    const order = ['none', 'mild', 'moderate', 'good', 'strong', 'violent'];
+    for (const row of SEVERITY_TABLE) expect(row.low).toBeLessThanOrEqual(row.high);
+    for (const medium of ['oil', 'water', 'brine'] as const) {
+      const rows = SEVERITY_TABLE.filter((r) => r.medium === medium).sort((a, b) => order.indexOf(a.agitation) - order.indexOf(b.agitation));
+      for (let i = 1; i < rows.length; i++) expect(rows[i].low).toBeGreaterThanOrEqual(rows[i - 1].low);
+    }
+    const none = (m: 'air' | 'oil' | 'water' | 'brine') => severityFor(m, 'none').high;
+    expect(none('air')).toBeLessThan(none('oil'));
+    expect(none('oil')).toBeLessThan(none('water'));
+    expect(none('water')).toBeLessThan(none('brine'));
+    // Table values as commonly quoted: still air 0.02; oil without agitation 0.25–0.30; water without agitation 0.9–1.0.
+    expect(severityFor('air').low).toBe(0.02);
+    expect([severityFor('oil').low, severityFor('oil').high]).toEqual([0.25, 0.3]);
+    expect([severityFor('water').low, severityFor('water').high]).toEqual([0.9, 1.0]);
+  });
+  it('t8/5 equivalence also grows from surface to centre', () => {
+    const l = barEquivalence({ diameterMm: 60, severity: 0.35, fractions: [1, 0.75, 0] }).locations.map((x) => x.byT85.mm!);
+    expect(l[0]).toBeLessThan(l[1]);
+    expect(l[1]).toBeLessThan(l[2]);
   });
 });
 
