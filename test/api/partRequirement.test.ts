@@ -72,6 +72,14 @@ describe('GET /api/v1/part-requirement', () => {
     expect(r.body.criticalDiameter.mm).toBeLessThan(50.8);
   }, 120_000);
 
+  test('a chemistry given in the query is used for the prediction of every mill', async () => {
+    const r = await t.request('GET', '/api/v1/part-requirement?grade=8620H&mill=ANVIL&diameter=25&medium=water&location=0.75&hrc=27&chemistry=C:0.21,Mn:0.85,Si:0.25,Ni:0.55,Cr:0.52,Mo:0.2&grainSize=7');
+    expect(r.status).toBe(200);
+    expect(r.body.mills).toHaveLength(1);
+    expect(r.body.mills[0].prediction.chemistry).toBe('given');
+    expect(r.body.input.fraction).toBe(0.75);
+  }, 60_000);
+
   test('refuses a request without a quench, with both, or for an unknown grade', async () => {
     expect((await t.request('GET', '/api/v1/part-requirement?grade=8620H&diameter=25&location=centre&hrc=27')).status).toBe(400);
     expect((await t.request('GET', '/api/v1/part-requirement?grade=8620H&diameter=25&medium=oil&severity=0.3&location=centre&hrc=27')).status).toBe(400);
