@@ -1,14 +1,16 @@
 // Settings of the statistical alert rules run in the ingest transaction, with their defaults. Sources of
 // the methods are named in each rule's file; docs/access-and-alerts.md ("Rules") explains the choices.
 //
-// How the defaults were chosen: a chart is evaluated per mill x grade x band distance, so the demo plant
-// with 9 series and 13 to 19 band distances watches ~140 charts at once, and each chart's in-control
-// false-alarm rate is multiplied by that (a heat whose whole curve is high fires at most distances at
-// once). The defaults are EWMA and CUSUM with long in-control run lengths (ARL0 several thousand heats
-// per chart) that still find a one-sigma shift within about 17 heats; the Nelson rules (1, 2, 3 and 5
-// when switched on) are off by default because on the demo plant they fired on 8 of its 9 touched series
-// within one import of 1,250 certificates, with no story behind most of them. docs/access-and-alerts.md
-// gives the counts. ENDQUENCH_ALERT_SETTINGS (JSON, same shape as AlertSettingsOverride) overrides them.
+// How the defaults were chosen: drift is watched by one curve-level scheme per mill x grade x source
+// (src/analysis/curveMonitor.ts; docs/monitoring.md), with limits designed for at most one false alarm
+// per series in three years and a fixed reference, so alerts do not depend on how heats are batched.
+// Per-distance charts (EWMA, CUSUM, Nelson rules) and the whole-curve T² of each point are off as alert
+// rules by default: with ~15 distances per curve their false alarms add up (on the demo plant the run
+// rules fired on 8 of its 9 series within one import of 1,250 certificates); they remain switchable, and
+// the pages draw the per-distance charts as explanation. bench/monitoring.bench.ts measures the design.
+// ENDQUENCH_ALERT_SETTINGS (JSON, same shape as AlertSettingsOverride) overrides the defaults for the
+// deployment; a grade's stored monitoring configuration (src/db/monitoringConfig.ts) overrides the
+// monitoring parts (GRADE_CONFIGURABLE) for that grade.
 import type { NelsonRule } from '../../stats/nelsonRules.ts';
 import type { SeriesSource } from '../../db/series.ts';
 import type { CurveMonitorSettings } from '../../analysis/curveMonitor.ts';
