@@ -32,7 +32,7 @@ export function flagSentences(r: CapabilityResult, _values: readonly number[] = 
     }
     if (!r.fitted && r.fitProblem) out.push(`No fitted distribution: ${r.fitProblem}. Judge the shape from the histogram and the probability plot.`);
     if (r.percentile && r.percentile.interval) {
-      out.push(`The percentile-based Ppk, ${fmt(r.percentile.ppk)} (95% bootstrap interval ${fmt(r.percentile.interval.lower)} – ${fmt(r.percentile.interval.upper)}), does not assume a distribution; it rests on ${r.n} heats, enough to reach the 0.135 % tails.`);
+      out.push(`The percentile-based Ppk, ${fmt(r.percentile.ppk)} (95% bootstrap interval ${fmt(r.percentile.interval.lower)} – ${fmt(r.percentile.interval.upper)}), does not assume a distribution; it rests on ${r.n} heats, enough to reach the 0.135 % tails, but its bootstrap interval runs narrow (a bootstrap of the extreme heats), so prefer the fitted figure.`);
     }
     if (r.percentile && r.flags.percentileFewData) {
       out.push(
