@@ -51,7 +51,7 @@ function TrialForm(props: { choice: SeriesChoice; points: ProposedPoint[]; mills
         <Select name="grade" label="Grade" value={c.grade} options={c.grades.map((g) => ({ value: g, label: g }))} />
         <WindowInputs from={c.from} to={c.to} />
         <label>
-          Share for the tightest band held
+          Share of curves the suggested band must hold (95 % confidence)
           <input type="number" name="share" min="0.5" max="0.999" step="0.005" value={String(props.share)} />
         </label>
       </div>
@@ -112,11 +112,12 @@ function results(result: BandTrialResult, kit: Parameters<Parameters<typeof page
     currentShare: m.current?.failingShare ?? null,
     incomplete: m.proposed.incomplete,
     expected: m.proposed.expectedShare,
+    expectedShare: m.proposed.expectedShare?.share ?? null,
     held: m.suggestion?.heldShare ?? null,
     heldLater: m.suggestion?.outOfSample?.heldShare ?? null,
   }));
   const t = result.total;
-  summary.push({ mill: 'all chosen', heats: t.proposed.heats, failing: t.proposed.failingCount, share: t.proposed.failingShare, currentFailing: t.current?.failingCount ?? null, currentShare: t.current?.failingShare ?? null, incomplete: t.proposed.incomplete, expected: t.proposed.expectedShare, held: null, heldLater: null });
+  summary.push({ mill: 'all chosen', heats: t.proposed.heats, failing: t.proposed.failingCount, share: t.proposed.failingShare, currentFailing: t.current?.failingCount ?? null, currentShare: t.current?.failingShare ?? null, incomplete: t.proposed.incomplete, expected: t.proposed.expectedShare, expectedShare: t.proposed.expectedShare?.share ?? null, held: null, heldLater: null });
   const shareRows = result.mills.flatMap((m) => [
     ...(m.current ? [{ mill: m.mill, band: 'band in force', share: m.current.failingShare, failing: m.current.failingCount, heats: m.current.heats }] : []),
     { mill: m.mill, band: 'proposed band', share: m.proposed.failingShare, failing: m.proposed.failingCount, heats: m.proposed.heats },
@@ -142,7 +143,7 @@ function results(result: BandTrialResult, kit: Parameters<Parameters<typeof page
           { key: 'currentShare', label: 'Share today', numeric: true, cell: (r: (typeof summary)[number]) => (r.currentShare === null ? '–' : `${fmt(100 * r.currentShare, 1)} %`) },
           { key: 'incomplete', label: 'Not fully tested', numeric: true },
           { key: 'expected', label: 'Expected outside (whole curve)', htmlOnly: true, cell: (r: (typeof summary)[number]) => (r.expected ? simulatedPercentText(clopperPearson(Math.round(r.expected.share * r.expected.draws), r.expected.draws)) : '–') },
-          { key: 'expectedShare', label: 'Expected share outside', csvOnly: true, cell: (r: (typeof summary)[number]) => r.expected?.share ?? null },
+          { key: 'expectedShare', label: 'Expected share outside', csvOnly: true },
           { key: 'held', label: 'Share inside suggested band', numeric: true, digits: 3 },
           { key: 'heldLater', label: 'Same rule, newer third', numeric: true, digits: 3 },
         ],
