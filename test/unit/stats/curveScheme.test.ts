@@ -3,7 +3,7 @@ import { describe, expect, it } from 'vitest';
 import { fitCurveReference, lag1Autocorrelation, runCurveScheme, type CurveSchemeDesign } from '../../../src/stats/curveScheme.ts';
 import { fQuantile } from '../../../src/stats/distributions.ts';
 import { createRng } from '../../../src/stats/random.ts';
-import { findingsOf, heatRate, monitorSeries, type CurveMonitorSettings, type MonitoredHeat } from '../../../src/analysis/curveMonitor.ts';
+import { episodesOf, findingsOf, heatRate, monitorSeries, type CurveMonitorSettings, type MonitoredHeat } from '../../../src/analysis/curveMonitor.ts';
 
 const DESIGN: CurveSchemeDesign = { lambda: 0.1, targetArl: 450, locationShare: 0.5, guarantee: 0.9, autocorrelationThreshold: 0.2, shapeComponents: 12 };
 const P = 8;
@@ -125,5 +125,36 @@ describe('the series wrapper', () => {
     const f = findingsOf(s, (id) => id > 150);
     expect(f.map((x) => x.cause)).toContain('level:high');
     expect(f.find((x) => x.cause === 'level:high')!.heats.every((h) => h.heatId > 150)).toBe(true);
+  });
+});
+
+describe('signal episodes (one alert per drift)', () => {
+  const point = (ewma: number, shape = false) => ({ u: 0, e: 0, ewma, limit: 1, level: ewma > 1 ? ('high' as const) : ewma < -1 ? ('low' as const) : null, t2: 0, t2Ucl: 1, shape, deviations: [] });
+  const monitoring = (points: ReturnType<typeof point>[]) =>
+    ({ status: 'monitoring', reason: null, origin: null, reference: null, referenceHeats: [], excludedHeats: [], heatsPerYear: 150, statements: [], monitored: points.map((p, i) => ({ heatId: i + 1, heatNumber: `H${i + 1}`, castDate: '2024-01-01', row: [], point: p })) }) as Parameters<typeof episodesOf>[0];
+
+  it('a level episode lasts until the EWMA is back inside half its limit (our hysteresis); a new crossing after that is a new episode', () => {
+    const m = monitoring([0.2, 1.2, 0.7, 1.1, 0.4, 1.3, -1.2].map((z) => point(z)));
+    expect(episodesOf(m).map((e) => [e.cause, e.onset, e.signals])).toEqual([
+      ['level:high', 1, [1, 3]],
+      ['level:high', 5, [5]],
+      ['level:low', 6, [6]],
+    ]);
+  });
+
+  it('shape signals within 25 heats of the last one belong to its episode', () => {
+    const pts = Array.from({ length: 80 }, (_, i) => point(0, [10, 30, 70].includes(i)));
+    expect(episodesOf(monitoring(pts)).map((e) => [e.onset, e.signals])).toEqual([
+      [10, [10, 30]],
+      [70, [70]],
+    ]);
+  });
+
+  it('findings keep the episode onset even when it came with an earlier batch', () => {
+    const m = monitoring([0.2, 1.2, 1.3, 1.4].map((z) => point(z)));
+    const f = findingsOf(m, (id) => id >= 3);
+    expect(f).toHaveLength(1);
+    expect(f[0].onset.heatNumber).toBe('H2');
+    expect(f[0].heats.map((h) => h.heatNumber)).toEqual(['H3', 'H4']);
   });
 });
