@@ -6,6 +6,9 @@ import type { HeatCurve } from '../../../src/db/series.ts';
 import { biasChart, labAgreementOf, labPairs, DEFAULT_AGREEMENT_SETTINGS } from '../../../src/analysis/receivingAgreement.ts';
 import { lotsDue, skipLotDecision, type LotHistoryItem } from '../../../src/analysis/skipLot.ts';
 import { createRng } from '../../../src/stats/random.ts';
+import { planOf } from '../../../src/analysis/receivingPlan.ts';
+import type { LotRow } from '../../../src/db/receivingLots.ts';
+import type { Band } from '../../../src/hardenability/bands.ts';
 
 const MM = [1.5, 3, 5, 7, 9, 11, 13, 15];
 
@@ -117,3 +120,47 @@ describe('skip-lot rules (after ISO 2859-3)', () => {
     expect(lotsDue(h, decision).map((l) => l.lotKey)).toEqual(['H5/L1', 'H7/L1']);
   });
 });
+
+describe('the plan from loaded data', () => {
+  const band: Band = { grade: 'G', version: 1, effectiveFrom: '2020-01-01', status: 'active', kind: 'standard', points: MM.map((mm, k) => ({ mm, minHrc: 40 - 2.5 * k, maxHrc: 56 - 2.5 * k })) };
+  /** n heats with one lot each; re-tested where `tested(i)`; the plant reads `plantShift(i)` off the truth. */
+  function data(n: number, tested: (i: number) => boolean, plantShift: (i: number) => number) {
+    const rng = createRng(5n);
+    const curves: HeatCurve[] = [];
+    const lots: LotRow[] = [];
+    for (let i = 0; i < n; i++) {
+      const truth = MM.map((_, k) => 48 - 2.5 * k + 0.5 * rng.normal());
+      curves.push(curve(i + 1, 'mill_certificate', truth.map((v) => v + 0.3 * rng.normal()), date(i)));
+      if (tested(i)) curves.push(curve(i + 1, 'receiving_inspection', truth.map((v) => v + plantShift(i) + 0.3 * rng.normal()), date(i), 'L1', (i + 1) * 10 + 1));
+      lots.push({ lotId: i + 1, lotNumber: 'L1', heatId: i + 1, heatNumber: `H${String(i + 1).padStart(3, '0')}`, mill: 'MILLA', castDate: date(i), receivedDate: date(i), receivedOnFile: true });
+    }
+    return { curves, lots, bands: [band], openAlert: false, asOf: date(n - 1) };
+  }
+
+  it('skips after 10 accepted re-tests with a capable supply, and lists every second lot since the last re-test', () => {
+    const p = planOf('MILLA', 'G', data(60, (i) => i < 40, () => 0));
+    expect(p.evidence.ppk!).toBeGreaterThan(1.33);
+    expect(p.decision.state).toBe('skipping');
+    expect(p.retested).toBe(40);
+    // Lots 41..60 untested since the last re-test; 1 in k of them is due, those inside the 60-day window.
+    const windowFrom = new Date(Date.parse(`${p.asOf}T00:00:00Z`) - 60 * 86_400_000).toISOString().slice(0, 10);
+    expect(p.due.length).toBeGreaterThan(0);
+    expect(p.due.every((d) => d.receivedDate >= windowFrom && d.receivedDate <= p.asOf)).toBe(true);
+    expect(p.due.length + p.overdueBeforeWindow).toBe(Math.floor(20 / p.decision.every));
+  });
+
+  it('a re-test 4 HRC below the certificate is not accepted and returns the mill to every lot', () => {
+    const p = planOf('MILLA', 'G', data(60, (i) => i < 40, (i) => (i === 35 ? -4 : 0)));
+    expect(p.decision.state).toBe('full');
+    expect(p.decision.lastRejection?.lotKey).toBe('H036/L1');
+    expect(p.decision.lastRejection?.reason).toMatch(/certificate reads above our test by [34]\.\d HRC/);
+    expect(p.decision.acceptedInARow).toBe(4);
+  });
+
+  it('an open laboratory-agreement alert keeps every lot due', () => {
+    const p = planOf('MILLA', 'G', { ...data(60, (i) => i < 40, () => 0), openAlert: true });
+    expect(p.decision.every).toBe(1);
+    expect(p.due.length + p.overdueBeforeWindow).toBe(20);
+  });
+});
+
