@@ -52,10 +52,11 @@ describe('the five-minute tour', () => {
     expect(text).toMatch(/SERRANIA[^\n]*looks edited/);
   });
 
-  it('2. Trends: the manganese creep climbs the CUSUM and EWMA at QUELLMARK 20MnCr5-D', async () => {
-    const text = await stop('2-trends', '/trends?grade=20MnCr5-D&mill=QUELLMARK&distance=11', 'h2:has-text("CUSUM")');
-    expect(text).toMatch(/cusum_upper/);
-    expect(text).toMatch(/ewma_beyond_limit/);
+  it('2. Trends: the manganese creep lifts the whole-curve level past its designed limit at QUELLMARK 20MnCr5-D', async () => {
+    const text = await stop('2-trends', '/trends?grade=20MnCr5-D&mill=QUELLMARK&distance=11', 'h2:has-text("Whole curve")');
+    expect(text).toMatch(/Whole curve: what the drift alerts judge/);
+    expect(text).toMatch(/curve level up/);
+    expect(text).toMatch(/Lag-1 autocorrelation of the curve level/);
   });
 
   it('3. Alerts: the drift and the copied certificate are waiting, one alert each', async () => {
@@ -63,7 +64,7 @@ describe('the five-minute tour', () => {
     const copy = site.demo.stories.copiedCertificate;
     expect(text).toContain(`Heat ${copy.copyHeat} (${copy.mill}, ${copy.grade}) reports the same curve and chemistry as heat ${copy.sourceHeat}`);
     const drift = site.demo.stories.manganeseCreep;
-    expect(text).toMatch(new RegExp(`cusum_signal\\s+${drift.mill}\\s+${drift.grade}`));
+    expect(text).toMatch(new RegExp(`curve_level_shift\\s+${drift.mill}\\s+${drift.grade}`));
   });
 
   it('4. Heat sheet of the copy: the whole certificate repeats an earlier heat', async () => {

@@ -314,7 +314,16 @@ export function trendsPage(app: Hono<any>, db: Db) {
         distancesMm: text('scope') === 'one' && distance !== undefined ? [distance] : undefined,
       });
       const skipped = result.skipped.length ? ` Not frozen: ${result.skipped.map((s) => `${fmt(s.distanceMm, 1)} mm (${s.reason})`).join('; ')}.` : '';
-      return back(`Baseline frozen for ${result.baselines.length} distance(s) from heats cast ${from} to ${to}.${skipped}`);
+      // What the window means for the curve-level scheme (docs/monitoring.md): refused below the minimum, wider limits below the advised size.
+      const curve = (await monitoringSettingsFor(db, view.grade)).curve;
+      const heats = Math.max(...result.baselines.map((b) => ((b.limits as { heats?: string[] }).heats ?? []).length));
+      const size =
+        heats < curve.minReferenceHeats
+          ? ` Warning: ${heats} heats in the window; the whole-curve drift alerts need at least ${curve.minReferenceHeats} and will not run on this baseline.`
+          : heats < curve.referenceHeats
+            ? ` Note: ${heats} heats in the window (${curve.referenceHeats} advised): the whole-curve limits are widened for it, and a small drift is found later.`
+            : '';
+      return back(`Baseline frozen for ${result.baselines.length} distance(s) from heats cast ${from} to ${to}.${skipped}${size}`);
     } catch (error) {
       if (error instanceof ParamError || error instanceof AnalysisError) return back(`Nothing frozen: ${error.message}`);
       throw error;
