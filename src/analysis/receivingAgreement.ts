@@ -229,7 +229,10 @@ export function labAgreementOf(mill: string, grade: string, curves: readonly Hea
   const ref = settings.plantRepeatabilitySd;
   // The pair bias averages k readings of the plant: its share of the plant's repeatability is σ_r/√k.
   const meanK = pairs.length ? pairs.reduce((s, p) => s + p.differences.length * p.plantTests, 0) / pairs.length : 1;
-  const overall = pairs.length >= 3 ? blandAltman(pairs.map((p) => p.bias), pairs.map(() => 0), { referenceRepeatabilitySd: ref === null ? null : ref / Math.sqrt(meanK) }) : null;
+  // Each pair as the mean of the mill's and of the plant's readings over the common distances: their
+  // difference is the pair bias, and their mean the level of that curve (for the regression on level).
+  const meanOf = (p: LabPair, side: 'mill' | 'plant') => p.differences.reduce((s, d) => s + d[side], 0) / p.differences.length;
+  const overall = pairs.length >= 3 ? blandAltman(pairs.map((p) => meanOf(p, 'mill')), pairs.map((p) => meanOf(p, 'plant')), { referenceRepeatabilitySd: ref === null ? null : ref / Math.sqrt(meanK) }) : null;
   const distances = [...new Set(pairs.flatMap((p) => p.differences.map((d) => d.distanceMm)))].sort((a, b) => a - b);
   const byDistance: LabAgreement['byDistance'] = [];
   for (const mm of distances) {

@@ -58,6 +58,9 @@ describe('the paired-bias chart', () => {
     const quiet = labAgreementOf('MILLA', 'G', history(40, () => 0.3));
     expect(quiet.chart!.firstSignal).toBeNull();
     expect(quiet.overall!.bias).toBeGreaterThan(0);
+    // The overall bias is the mean of the pair biases (difference of the curve means = mean of differences).
+    expect(quiet.overall!.bias).toBeCloseTo(quiet.pairList.reduce((t, p) => t + p.bias, 0) / quiet.pairs, 12);
+    expect(quiet.overall!.n).toBe(40);
     const shifted = labAgreementOf('MILLA', 'G', history(40, (i) => (i >= 20 ? 1.8 : 0.3)));
     const first = shifted.chart!.firstSignal!;
     expect(first.side).toBe('high');
