@@ -1,8 +1,9 @@
 // Skip-lot re-testing of arriving lots, after ISO 2859-3:2005 (Sampling procedures for inspection by
 // attributes — Part 3: Skip-lot sampling procedures). Pure: no I/O.
 //
-// What we take from ISO 2859-3 (its structure; the numbers below are our own choices, stated so that an
-// engineer can change them): a supplier first qualifies for skipping with a run of consecutive lots
+// What we take from ISO 2859-3 (its structure, described from memory — the standard's own qualification
+// tables were not at hand; the numbers below are our own choices, stated so that an engineer can change
+// them): a supplier first qualifies for skipping with a run of consecutive lots
 // accepted at lot-by-lot inspection and a product of demonstrated quality; while skipping, lots are
 // inspected at a frequency (1/2, 1/3, 1/4, 1/5 here) that is lowered step by step as further inspected
 // lots are accepted; a lot that is not accepted interrupts skipping and returns the supplier to lot-by-lot
