@@ -123,7 +123,8 @@ export function monitorSeries(heats: readonly MonitoredHeat[], settings: CurveMo
     `The level limit is widened from L = ${d.knownL.toFixed(2)} to ${d.L.toFixed(2)} for the ${fit.kept.length} reference heats, so that at most ${pct(1 - d.guarantee)} of references this size ` +
       `alarm more often than designed; expected false alarms a year on this design: ${(d.meanFalseAlarmsPerHeat * rate).toFixed(2)} from the level chart.`,
   );
-  if (fit.kept.length < settings.referenceHeats) statements.push(`Warning: only ${fit.kept.length} reference heats (${settings.referenceHeats} advised): the limits are wide and a small drift is found late.`);
+  if (reference.length < settings.referenceHeats) statements.push(`Warning: only ${reference.length} reference heats (${settings.referenceHeats} advised): the limits are wide and a small drift is found late.`);
+  if (fit.excluded.length) statements.push(`${fit.excluded.length} reference heat(s) set aside by phase I (level or shape far off): ${fit.excluded.map((i) => reference[i].heatNumber).slice(0, 10).join(', ')}.`);
   statements.push(
     fit.location.treated
       ? `Lag-1 autocorrelation of the curve level over the reference is ${fit.location.lag1.toFixed(2)} (at or above ${settings.autocorrelationThreshold}): the level chart runs on the residuals of an AR(1) fit (φ = ${fit.location.phi.toFixed(2)}).`

@@ -40,7 +40,7 @@ function originText(chart: ControlChart): string {
   return `Limits from phase I on the heats shown (trial limits, points beyond them set aside${o.excludedHeats.length ? `: ${o.excludedHeats.length} heat(s)` : ''}). No baseline is frozen for this series.`;
 }
 
-function chartBlock(kit: PageKit, chart: ControlChart, title: string, explain: string, id: string = chart.kind): Child {
+function chartBlock(kit: PageKit, chart: ControlChart, title: string, explain: string, id: string = chart.kind, names?: { title: string; subtitle: string; y: string }): Child {
   const rules = new Map<number, string[]>();
   for (const s of chart.signals) for (const i of s.points) rules.set(i, [...(rules.get(i) ?? []), shortRule(s.rule)]);
   const rows = chart.points.map((p) => ({
@@ -64,7 +64,7 @@ function chartBlock(kit: PageKit, chart: ControlChart, title: string, explain: s
         {explain} {id.startsWith('curve-') ? null : <span class="origin">{originText(chart)}</span>}
       </>
     ),
-    spec: pageControlChartSpec(chart),
+    spec: pageControlChartSpec(chart, 240, names),
     table: {
       columns: [
         { key: 'index', label: '#', numeric: true },
@@ -190,8 +190,18 @@ export function trendsPage(app: Hono<any>, db: Db) {
         ) : null}
         {curve ? (
           <>
-            {chartBlock(kit, curve.level, 'Curve level', 'EWMA of the mean standardised deviation of the curve (each distance against its reference mean and SD): above the upper limit the curve is harder as a whole, below the lower softer.', 'curve-level')}
-            {curve.shape ? chartBlock(kit, curve.shape, 'Curve shape', 'T² of what is left of the curve once its level is taken out: above the limit the curve has a form its reference did not show.', 'curve-shape') : null}
+            {chartBlock(kit, curve.level, 'Curve level', 'EWMA of the mean standardised deviation of the curve (each distance against its reference mean and SD): above the upper limit the curve is harder as a whole, below the lower softer.', 'curve-level', {
+              title: `Curve level: ${choice.mill} ${choice.grade}, heats after the reference`,
+              subtitle: `Designed limit ±${fmt(curve.level.ucl, 2)} (L = ${fmt(curve.level.parameters.L, 2)}, λ = ${curve.level.parameters.lambda})`,
+              y: 'Level EWMA (reference SDs)',
+            })}
+            {curve.shape
+              ? chartBlock(kit, curve.shape, 'Curve shape', 'T² of what is left of the curve once its level is taken out: above the limit the curve has a form its reference did not show.', 'curve-shape', {
+                  title: `Curve shape: ${choice.mill} ${choice.grade}, heats after the reference`,
+                  subtitle: `Designed limit ${fmt(curve.shape.ucl, 1)} (false-alarm probability ${fmt(curve.shape.parameters.alpha * 1000, 2)} per thousand heats)`,
+                  y: 'Shape T²',
+                })
+              : null}
           </>
         ) : null}
         {monitoring.episodes.length

@@ -29,8 +29,13 @@ export function shortRule(rule: string): string {
   return RULE_WORDS[rule] ?? rule.replace(/_/g, ' ');
 }
 
-export function pageControlChartSpec(chart: ControlChart, height = 240): VegaLiteSpec {
+export function pageControlChartSpec(chart: ControlChart, height = 240, names?: { title: string; subtitle: string; y: string }): VegaLiteSpec {
   const base = controlChartSpec(chart, { height });
+  if (names) {
+    // Charts that are not one of the library's kinds (the whole-curve level and shape) name themselves.
+    (base as Record<string, unknown>).title = { text: names.title, subtitle: names.subtitle };
+    for (const layer of base.layer as Array<{ encoding?: { y?: { title?: unknown } } }>) if (layer.encoding?.y && 'title' in layer.encoding.y) layer.encoding.y.title = names.y;
+  }
   // Each rule is labelled at the first point of every run of consecutive signalling points, so a long
   // EWMA or CUSUM excursion carries one label, not one per heat.
   const short = new Map<number, string[]>();
