@@ -112,7 +112,7 @@ export function analysisRoutes(app: OpenAPIHono<AppEnv>, db: Db) {
       tags: ['analysis'],
       summary: 'Control chart of a mill’s series: individuals, ewma, cusum or t2',
       description:
-        'Points (heat, cast date, value, plotted statistic, limits), centre, limits and signals (rule and points). Limits come from the frozen baseline of the series when one is on file (limitsFrom says which), otherwise from phase I on the window. `format=vega-lite` answers the ready chart spec instead.',
+        'Points (heat, cast date, value, plotted statistic, limits), centre, limits and signals (rule and points). Limits come from the frozen baseline of the series when one is on file (limitsFrom says which), otherwise from phase I on the window. Parameters not given are those the alert rules use for the grade (none of the run rules while they are off); `view` is `looser` when the parameters asked for would signal more than the alerts. The drift alerts judge the whole curve: GET /api/v1/monitoring/{grade}/series. `format=vega-lite` answers the ready chart spec instead.',
       request: {
         params: z.object({ kind: z.enum(CHART_KINDS as [string, ...string[]]) }),
         query: z.object({
