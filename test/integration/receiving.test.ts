@@ -111,6 +111,9 @@ describe(`receiving inspection on the demo plant (${process.env.TEST_DATABASE_UR
     const csv = await t.request('GET', '/receiving?grade=20MnCr5-D&mill=VARNHOLT&csv=plans');
     expect(csv.status).toBe(200);
     expect(String(csv.body).split('\n')[0]).toContain('Mill');
+    const entered = await t.request('GET', '/receiving?grade=18CrNiMo7-D&mill=QUELLMARK&repeatability=0.3');
+    expect(entered.body as string).toContain('0.30 HRC per reading, as entered');
+    expect(entered.body as string).toMatch(/Our own repeatability \(0\.30 HRC per reading\)/);
     // A malformed date is answered on a page that says so (src/web/page.tsx turns ParamError into 422).
     expect((await t.request('GET', '/receiving?asOf=2026-13-01')).status).toBe(422);
   });

@@ -10,7 +10,7 @@ import { plantRepeatability } from '../../analysis/receivingRepeatability.ts';
 import { Caution } from '../components/caution.tsx';
 import { Select, Tag } from '../components/bits.tsx';
 import { page, type PageKit } from '../page.tsx';
-import { fmt, mmLabel, optionalDate, optionalText, query } from '../params.ts';
+import { fmt, mmLabel, optionalDate, optionalNumber, optionalText, query } from '../params.ts';
 import { agreementPlotSpec, biasChartSpec, type BiasChartRow } from '../specs/receiving.ts';
 
 const planWords = (p: ReceivingPlan) => (p.decision.every === 1 ? 'every lot' : `1 lot in ${p.decision.every}`);
@@ -47,7 +47,7 @@ function detail(plan: ReceivingPlan, kit: PageKit) {
             {fmt(o.lowerLimit, 2)} and {fmt(o.upperLimit, 2)} HRC
           </strong>{' '}
           in 95 % of heats (limits of agreement, Bland &amp; Altman 1986).
-          {a.plantRepeatabilitySd !== null ? ` Our own repeatability (${fmt(a.plantRepeatabilitySd, 2)} HRC per reading, from our repeat tests) leaves ${fmt(o.ownSd, 2)} HRC of the scatter to the mill's side.` : ''}
+          {a.plantRepeatabilitySd !== null ? ` Our own repeatability (${fmt(a.plantRepeatabilitySd, 2)} HRC per reading) leaves ${fmt(o.ownSd, 2)} HRC of the scatter to the mill's side.` : ''}
           {a.byLevel.regression ? ` The difference changes by ${fmt(a.byLevel.regression.slope, 3)} HRC per HRC of level (a guide only: readings of one curve are not independent).` : ''}
         </p>
       ) : (
@@ -115,8 +115,11 @@ export function receivingPage(app: Hono<any>, db: Db) {
     const grade = grades.find((g) => g.code === optionalText(c.req.query('grade')))?.code;
     const mill = mills.find((m) => m.code === optionalText(c.req.query('mill')))?.code;
     const asOf = optionalDate(c.req.query('asOf'), 'The as-of date');
+    // Our repeatability per reading: as entered (e.g. from a gauge study), else from our repeat tests.
+    const entered = optionalNumber(c.req.query('repeatability'), 'Our repeatability', { min: 0, max: 5 });
     const repeatability = await plantRepeatability(db);
-    const { asOf: used, plans } = await receivingPlans(db, { grade, mill, asOf }, undefined, { ...DEFAULT_AGREEMENT_SETTINGS, plantRepeatabilitySd: repeatability.sd });
+    const sd = entered ?? repeatability.sd;
+    const { asOf: used, plans } = await receivingPlans(db, { grade, mill, asOf }, undefined, { ...DEFAULT_AGREEMENT_SETTINGS, plantRepeatabilitySd: sd });
     const summary = plans.map((p) => {
       const o = p.agreement.overall;
       const state = chartState(p.agreement);
@@ -153,6 +156,10 @@ export function receivingPage(app: Hono<any>, db: Db) {
               As of
               <input type="date" name="asOf" value={asOf ?? ''} />
             </label>
+            <label>
+              Our repeatability, HRC (blank: from our repeat tests)
+              <input type="number" name="repeatability" min="0" max="5" step="0.01" value={entered === undefined ? '' : String(entered)} />
+            </label>
             <button type="submit" class="primary">
               Show
             </button>
@@ -162,7 +169,7 @@ export function receivingPage(app: Hono<any>, db: Db) {
         {kit.table('plans', 'Receiving plans', {
           columns: [
             { key: 'mill', label: 'Mill' },
-            { key: 'grade', label: 'Grade', cell: (r: (typeof summary)[number]) => <a href={`/receiving${query({ grade: r.grade, mill: r.mill, asOf })}`}>{r.grade}</a> },
+            { key: 'grade', label: 'Grade', cell: (r: (typeof summary)[number]) => <a href={`/receiving${query({ grade: r.grade, mill: r.mill, asOf, repeatability: entered })}`}>{r.grade}</a> },
             { key: 'pairs', label: 'Heats tested by both', numeric: true },
             { key: 'bias', label: 'Mill − plant (HRC)', numeric: true, digits: 2 },
             { key: 'limits', label: 'Limits of agreement' },
@@ -186,7 +193,7 @@ export function receivingPage(app: Hono<any>, db: Db) {
           ))}
         </ul>
         <p class="note">
-          Rules (after ISO 2859-3, the numbers our own): every lot until 10 re-tests in a row are accepted — inside the band, and within 3 HRC of the certificate on average — with a weakest-distance Ppk of at least 1.0 over the last 12 months and no open laboratory signal; then 1 lot in 2, one step rarer for each further 10 accepted, never rarer than 1 in 3 without Ppk 1.33 and limits of agreement within ±2.5 HRC, and never rarer than 1 in 5. One re-test not accepted returns the mill to every lot. Our repeatability: {repeatability.sd !== null ? `${fmt(repeatability.sd, 2)} HRC per reading (r = ${fmt(repeatability.limit, 1)} HRC) from ${repeatability.heats} heats we tested twice; ${repeatability.note}` : repeatability.note}.
+          Rules (after ISO 2859-3, the numbers our own): every lot until 10 re-tests in a row are accepted — inside the band, and within 3 HRC of the certificate on average — with a weakest-distance Ppk of at least 1.0 over the last 12 months and no open laboratory signal; then 1 lot in 2, one step rarer for each further 10 accepted, never rarer than 1 in 3 without Ppk 1.33 and limits of agreement within ±2.5 HRC, and never rarer than 1 in 5. One re-test not accepted returns the mill to every lot. Our repeatability: {entered !== undefined ? `${fmt(entered, 2)} HRC per reading, as entered` : repeatability.sd !== null ? `${fmt(repeatability.sd, 2)} HRC per reading (r = ${fmt(repeatability.limit, 1)} HRC) from ${repeatability.heats} heats we tested twice; ${repeatability.note}` : repeatability.note}.
         </p>
         <h2>Lots due for a re-test ({due.length})</h2>
         <p class="note">Lots received in the 60 days up to the as-of date that the plan selects and that have no receiving test on file.</p>
