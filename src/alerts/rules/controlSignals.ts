@@ -4,11 +4,12 @@
 // J. Quality Technology 16:237-239); EWMA with exact limits (Roberts 1959; Montgomery, Introduction to
 // Statistical Quality Control, §9.2); two-sided tabular CUSUM (Page 1954; Lucas & Crosier 1982,
 // Technometrics 24:199-205, for the head start).
+// Off by default (the curve-level scheme of curveDrift.ts replaces them); switchable per grade.
 // Limits: the series' active frozen baseline when there is one (phase II); otherwise phase I (trial
-// limits, iterative exclusion of points beyond 3 sigma; Montgomery §6.4) on up to `reference.maxHeats`
-// heats just before the first new heat of the series, if at least `reference.minHeats` are on file.
-// The chart runs over those reference heats and every heat after them, so EWMA and CUSUM carry the
-// history into the new points (a drift that arrives a few heats per ingest still accumulates).
+// limits, iterative exclusion of points beyond 3 sigma; Montgomery §6.4) on the series' first
+// `reference.maxHeats` heats (fewer while it is younger: the heats before the first new one), if at
+// least `reference.minHeats` are on file. The reference is kept, not re-estimated before each import.
+// The chart runs over the whole series, so EWMA and CUSUM carry the history into the new points.
 // Only a signal at a point of a heat this ingest wrote raises an alert; a signal already seen in the
 // history does not. Cause key: rule (with the side for EWMA and CUSUM) + mill + grade + source, the band
 // distances that fired listed in the evidence (a heat whose whole curve is high fires most distances at
@@ -18,7 +19,7 @@
 // rules: info.
 import type { Executor } from '../../db/connection.ts';
 import type { ApplyResult } from '../../db/certificateStore.ts';
-import type { SeriesSource } from '../../db/series.ts';
+import { loadCurves, type SeriesSource } from '../../db/series.ts';
 import { raiseAlert, type RaiseAlertInput, type Severity } from '../../db/alerts.ts';
 import { baselineReference, phaseOneReference, univariateChart, type ChartSignal, type ControlChart, type UnivariateReference } from '../../analysis/controlCharts.ts';
 import { labelFor } from '../../analysis/bandOf.ts';
@@ -30,8 +31,7 @@ import { monitoringSettingsFor } from '../../analysis/monitoringSettings.ts';
 import {
   bandOnDate,
   baselineAt,
-  chartWindow,
-  curvesOfSource,
+  fixedReferenceWindow,
   distanceKey,
   ingestScope,
   lotOf,
@@ -217,10 +217,11 @@ export function controlSignalsRule(base: AlertRuleSettings = DEFAULT_ALERT_SETTI
       for (const source of settings.sources) {
         const fresh = newHeatsOfSource(group, source);
         if (fresh.size === 0) continue;
-        const curves = curvesOfSource(group, source);
+        // The whole series: its reference is its first heats, kept (not the heats before each import).
+        const curves = await loadCurves(tx, { grade: group.grade, mill: group.mill, source });
         const found: Firing[] = [];
         for (const d of distances) {
-          const window = chartWindow(pointsAt(curves, d), (p) => fresh.has(p.heatId), settings.reference.maxHeats);
+          const window = fixedReferenceWindow(pointsAt(curves, d), (p) => fresh.has(p.heatId), settings.reference.maxHeats);
           if (!window) continue;
           const ref = referenceFor(group, source, d, window.points.slice(0, window.referenceCount), settings);
           if ('skipped' in ref) continue;

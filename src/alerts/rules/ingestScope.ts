@@ -148,5 +148,20 @@ export function chartWindow<T>(series: readonly T[], isNew: (p: T) => boolean, m
   return { points, referenceCount: first - start, newIndices };
 }
 
+/**
+ * The whole time-ordered series with a reference that does not move with each import: the first
+ * `maxReference` points of the series (fewer while the series is younger: the points before the first
+ * new one), then everything after it. Null when nothing is new.
+ */
+export function fixedReferenceWindow<T>(series: readonly T[], isNew: (p: T) => boolean, maxReference: number): ChartWindow<T> | null {
+  const first = series.findIndex(isNew);
+  if (first < 0) return null;
+  const newIndices: number[] = [];
+  series.forEach((p, i) => {
+    if (isNew(p)) newIndices.push(i);
+  });
+  return { points: [...series], referenceCount: Math.min(first, maxReference), newIndices };
+}
+
 /** A stable text for a distance in a cause key. */
 export const distanceKey = (mm: number) => String(Number(mm.toFixed(6)));

@@ -2,8 +2,9 @@
 // of each mill x grade (x test source) touched by the ingest, beyond its upper limit at a heat this
 // ingest wrote. Chart: src/analysis/controlCharts.ts t2Chart (phase I Beta limit of Tracy, Young & Mason
 // 1992, J. Quality Technology 24:88-95; phase II F limit, NIST/SEMATECH e-Handbook §6.5.4.3.4).
+// Off by default (the shape statistic of curveDrift.ts replaces it); switchable per grade.
 // Reference: the curves of the newest frozen baseline window of the series when there is one; otherwise
-// up to `reference.maxHeats` complete curves just before the first new heat (at least
+// the series' first `reference.maxHeats` complete curves (kept; fewer while the series is younger) (at least
 // max(reference.minHeats, 2p) of them for p distances: our floor, so S is not close to singular).
 // Which distances drive a signal: the MYT decomposition (Mason, Tracy & Young 1995, J. Quality
 // Technology 27:99-108). A distance is named when its unconditional term d_j²/s_jj exceeds
@@ -22,7 +23,7 @@ import { fQuantile } from '../../stats/distributions.ts';
 import type { Band } from '../../hardenability/bands.ts';
 import { DEFAULT_ALERT_SETTINGS, type AlertRuleSettings } from './settings.ts';
 import { monitoringSettingsFor } from '../../analysis/monitoringSettings.ts';
-import { bandOnDate, chartWindow, curvesOfSource, ingestScope, lotOf, newHeatsOfSource, type SeriesGroup } from './ingestScope.ts';
+import { bandOnDate, fixedReferenceWindow, curvesOfSource, ingestScope, lotOf, newHeatsOfSource, type SeriesGroup } from './ingestScope.ts';
 import { chartDistances, newestNewCastDate } from './controlSignals.ts';
 
 export const T2_RULE = 't2_signal';
@@ -108,10 +109,11 @@ export function multivariateRule(base: AlertRuleSettings = DEFAULT_ALERT_SETTING
       for (const source of settings.sources) {
         const fresh = newHeatsOfSource(group, source);
         if (fresh.size === 0) continue;
-        const curves = curvesOfSource(group, source);
+        // The whole series: its reference is its first complete curves, kept (not the heats before each import).
+        const curves = await loadCurves(tx, { grade: group.grade, mill: group.mill, source });
         const byHeat = new Map(groupByHeat(curves).map((g) => [g[0].heatId, g]));
         const { rows } = curveRows(curves, distances);
-        const window = chartWindow(rows, (r) => fresh.has(r.heat.heatId), settings.reference.maxHeats);
+        const window = fixedReferenceWindow(rows, (r) => fresh.has(r.heat.heatId), settings.reference.maxHeats);
         if (!window) continue;
         const leading = window.points.slice(0, window.referenceCount).map((r) => byHeat.get(r.heat.heatId)!);
         const reference = await referenceOf(tx, group, source, leading);

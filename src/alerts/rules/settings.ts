@@ -16,7 +16,7 @@ import type { SeriesSource } from '../../db/series.ts';
 import type { CurveMonitorSettings } from '../../analysis/curveMonitor.ts';
 
 export interface ReferenceSettings {
-  /** Phase I (no frozen baseline) uses at most this many heats just before the first new one. */
+  /** Phase I of the per-distance rules (no frozen baseline) uses the series' first this-many heats, then keeps them. */
   maxHeats: number;
   /** ... and at least this many; with fewer, no limits are estimated and the rule is silent. */
   minHeats: number;
