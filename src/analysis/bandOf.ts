@@ -11,6 +11,7 @@ export function toBand(view: BandView): Band {
     effectiveFrom: view.effectiveFrom,
     status: view.status as Band['status'],
     kind: view.kind as Band['kind'],
+    rounding: view.rounding as Band['rounding'],
     reason: view.reason ?? undefined,
     points: view.points.map((p) => ({
       mm: p.distanceMm,
@@ -25,6 +26,8 @@ export interface BandSummary {
   version: number;
   effectiveFrom: string;
   kind: string;
+  /** How readings meet the limits ('astm_e29': rounded to the limit's places first). */
+  rounding: string;
   points: Array<{ distanceMm: number; label: string | null; minHrc: number | null; maxHrc: number | null }>;
 }
 
@@ -33,6 +36,7 @@ export function bandSummary(band: Band): BandSummary {
     version: band.version,
     effectiveFrom: band.effectiveFrom,
     kind: band.kind,
+    rounding: band.rounding ?? 'astm_e29',
     points: band.points.map((p) => ({ distanceMm: p.mm, label: p.label ?? null, minHrc: p.minHrc ?? null, maxHrc: p.maxHrc ?? null })),
   };
 }

@@ -92,6 +92,8 @@ export interface BandInput {
   effectiveFrom: string;
   status: 'draft' | 'active' | 'retired';
   kind: 'standard' | 'restricted';
+  /** Default 'astm_e29'. */
+  rounding?: 'astm_e29' | 'as_reported';
   reason?: string | null;
   author?: string | null;
   points: BandPointInput[];
@@ -104,6 +106,7 @@ export interface BandView {
   effectiveFrom: string;
   status: string;
   kind: string;
+  rounding: string;
   reason: string | null;
   author: string | null;
   createdAt: string;
@@ -128,6 +131,7 @@ export async function listBands(db: Db, gradeCode: string): Promise<BandView[]> 
     effectiveFrom: band.effectiveFrom,
     status: band.status,
     kind: band.kind,
+    rounding: band.rounding,
     reason: band.reason,
     author: band.author,
     createdAt: band.createdAt.toISOString(),
@@ -164,6 +168,7 @@ export async function addBandVersion(db: Db, gradeCode: string, band: BandInput)
         effectiveFrom: band.effectiveFrom,
         status: band.status,
         kind: band.kind,
+        rounding: band.rounding ?? 'astm_e29',
         reason: band.reason ?? null,
         author: band.author ?? null,
       })

@@ -79,6 +79,8 @@ export const bands = pgTable(
     status: text('status').notNull().default('active'),
     /** 'standard' or 'restricted' (a narrowed band inside the standard one). */
     kind: text('kind').notNull().default('standard'),
+    /** How readings meet the limits: 'astm_e29' (rounded to the limit's places, ASTM E29) or 'as_reported'. */
+    rounding: text('rounding').notNull().default('astm_e29'),
     reason: text('reason'),
     author: text('author'),
     createdAt: createdAt(),
@@ -87,6 +89,7 @@ export const bands = pgTable(
     uniqueIndex('bands_grade_version').on(t.gradeId, t.version),
     check('bands_status', sql`${t.status} in ('draft', 'active', 'retired')`),
     check('bands_kind', sql`${t.kind} in ('standard', 'restricted')`),
+    check('bands_rounding', sql`${t.rounding} in ('astm_e29', 'as_reported')`),
     check('bands_version_positive', sql`${t.version} > 0`),
   ],
 );

@@ -14,6 +14,13 @@ export interface BandPoint {
   maxHrc?: number;
 }
 
+/**
+ * How readings meet the limits: 'astm_e29' rounds each reading to the limit's places by ASTM E29 §6.4
+ * before comparing (35.4 meets a maximum of 35, 35.5 does not); 'as_reported' compares the reading as
+ * written. Absent: 'astm_e29'.
+ */
+export type BandRounding = 'astm_e29' | 'as_reported';
+
 export type BandKind = 'standard' | 'restricted';
 export type BandStatus = 'draft' | 'active' | 'retired';
 
@@ -26,6 +33,8 @@ export interface Band {
   kind: BandKind;
   points: readonly BandPoint[];
   reason?: string;
+  /** How readings are compared with the limits (absent: 'astm_e29'). */
+  rounding?: BandRounding;
 }
 
 export type BandPointKind = 'two_sided' | 'min_only' | 'max_only';

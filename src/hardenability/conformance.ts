@@ -1,13 +1,17 @@
 // Conformance of end-quench tests and heats to a hardenability band.
-// Bands as specified for H-steels (SAE J1268, ASTM A304, EN 10084 +H). Our convention, which no
-// source fixes: readings are compared as reported (no rounding) and a reading on a limit conforms.
-// Where a test has no reading at a band distance the value is interpolated with Fritsch & Carlson
-// (1980) monotone cubics between the neighbouring readings, and marked so; a band point outside the
-// test's measured range is "not tested", never a pass.
+// Bands as specified for H-steels (SAE J1268, ASTM A304, EN 10084 +H). Readings are compared with the
+// limits after rounding them to the limits' own places by the rounding method of ASTM E29 (§6.4: to
+// the nearest, a 5 followed by nothing goes to the even digit), the band's default (its `rounding`
+// setting may say 'as_reported' instead); a reading on a limit conforms. The quenched-end positions of
+// ISO 642 (1.5 mm) and ASTM A255 (J1 = 1/16 in = 1.5875 mm) are judged as one position: they differ by
+// 0.09 mm, inside either standard's placing tolerance of the first indentation (about ±0.1 mm, from
+// memory). Where a test has no reading at a band distance the value is interpolated with Fritsch &
+// Carlson (1980) monotone cubics between the neighbouring readings, and marked so; a band point outside
+// the test's measured range is "not tested", never a pass, and says why.
 
 import { monotoneCubic } from '../stats/monotoneInterpolation.ts';
 import { validateBand } from './bands.ts';
-import type { Band } from './bands.ts';
+import type { Band, BandRounding } from './bands.ts';
 import { sortedReadings } from './distances.ts';
 import { HardenabilityInputError } from './errors.ts';
 import type { EndQuenchTest, TestSource } from './types.ts';
@@ -20,9 +24,15 @@ export interface PointConformance {
   label?: string;
   minHrc?: number;
   maxHrc?: number;
-  /** Hardness used for the decision (null when not tested). */
+  /** Hardness used for the decision, after rounding (null when not tested). */
   hrc: number | null;
+  /** The reading (or interpolated value) before rounding, when rounding changed it. */
+  reported?: number;
   basis: 'measured' | 'interpolated' | 'not_tested';
+  /** Set when the reading came from the other standard's quenched-end position (J1 for 1.5 mm, or back). */
+  position?: string;
+  /** Why a point was not tested. */
+  reason?: string;
   verdict: PointVerdict;
   /**
    * Signed distance in HRC to the nearer limit: min(hrc - min, max - hrc) over the limits present.
@@ -43,7 +53,34 @@ export interface TestConformance {
   /** Smallest margin over the tested points (null if nothing was tested). */
   minMargin: number | null;
   counts: { pass: number; fail: number; notTested: number; interpolated: number };
+  /** How readings were compared with the limits. */
+  rounding: BandRounding;
 }
+
+/** The quenched-end position of both standards: band points and readings at or below this are the same place. */
+export const QUENCHED_END_POSITION_MAX_MM = 1.6;
+
+/**
+ * A value rounded to `places` decimals by ASTM E29 §6.4 (round half to even). Decimal halves are
+ * recognised on the value's shortest decimal form, so 34.45 at one place is a half (gives 34.4).
+ */
+export function roundE29(value: number, places: number): number {
+  const scale = 10 ** places;
+  const scaled = Number((value * scale).toPrecision(12));
+  const floor = Math.floor(scaled);
+  const fraction = scaled - floor;
+  let rounded: number;
+  if (Math.abs(fraction - 0.5) < 1e-9) rounded = floor % 2 === 0 ? floor : floor + 1;
+  else rounded = Math.round(scaled);
+  return rounded / scale;
+}
+
+/** Decimal places of a limit as written (35 -> 0, 35.5 -> 1). */
+const placesOf = (limit: number): number => {
+  const text = String(Number(limit.toPrecision(12)));
+  const dot = text.indexOf('.');
+  return dot < 0 ? 0 : text.length - dot - 1;
+};
 
 export interface TestConformanceOptions {
   /** Readings within this distance (mm) of a band point count as measured there. Default 1e-6 mm. */
@@ -71,14 +108,37 @@ export function testConformance(test: EndQuenchTest, band: Band, options: TestCo
     return interpolant?.at(mm) ?? null;
   };
 
+  const rounding: BandRounding = b.rounding ?? 'astm_e29';
+  const first = readings[0].mm;
+  const last = readings[readings.length - 1].mm;
   const points = b.points.map((p): PointConformance => {
-    const exact = readings.find((r) => Math.abs(r.mm - p.mm) <= tol);
+    let exact = readings.find((r) => Math.abs(r.mm - p.mm) <= tol);
+    let position: string | undefined;
+    if (!exact && p.mm <= QUENCHED_END_POSITION_MAX_MM) {
+      exact = readings.find((r) => r.mm <= QUENCHED_END_POSITION_MAX_MM);
+      if (exact) {
+        position = `the reading at ${describeQuenchedEnd(exact.mm)} judged at ${describeQuenchedEnd(p.mm)}: the same quenched-end position (ISO 642 and ASTM A255)`;
+      }
+    }
     let hrc: number | null = exact ? exact.hrc : interpolateAt(p.mm);
     const basis: PointConformance['basis'] = exact ? 'measured' : hrc === null ? 'not_tested' : 'interpolated';
     if (hrc === null) {
-      return { ...limits(p), hrc: null, basis, verdict: 'not_tested', margin: null, governingLimit: null };
+      const reason =
+        readings.length < 2
+          ? 'the test has a single reading, and one reading cannot be interpolated'
+          : p.mm < first
+            ? `nearer the quenched end than the test's first reading (${first} mm)`
+            : `beyond the test's last reading (${last} mm)`;
+      return { ...limits(p), hrc: null, basis, verdict: 'not_tested', margin: null, governingLimit: null, reason };
     }
     hrc = exact ? hrc : Math.round(hrc * 1e9) / 1e9;
+    let reported: number | undefined;
+    if (rounding === 'astm_e29') {
+      const places = Math.max(...[p.minHrc, p.maxHrc].filter((v): v is number => v !== undefined).map(placesOf));
+      const rounded = roundE29(hrc, places);
+      if (rounded !== hrc) reported = hrc;
+      hrc = rounded;
+    }
     let margin = Infinity;
     let governingLimit: 'min' | 'max' | null = null;
     if (p.minHrc !== undefined && hrc - p.minHrc < margin) {
@@ -89,7 +149,16 @@ export function testConformance(test: EndQuenchTest, band: Band, options: TestCo
       margin = p.maxHrc - hrc;
       governingLimit = 'max';
     }
-    return { ...limits(p), hrc, basis, verdict: margin >= 0 ? 'pass' : 'fail', margin, governingLimit };
+    return {
+      ...limits(p),
+      hrc,
+      ...(reported !== undefined ? { reported } : {}),
+      basis,
+      ...(position ? { position } : {}),
+      verdict: margin >= 0 ? 'pass' : 'fail',
+      margin,
+      governingLimit,
+    };
   });
 
   const tested = points.filter((p) => p.margin !== null);
@@ -107,8 +176,11 @@ export function testConformance(test: EndQuenchTest, band: Band, options: TestCo
     points,
     minMargin: tested.length ? Math.min(...tested.map((p) => p.margin as number)) : null,
     counts,
+    rounding,
   };
 }
+
+const describeQuenchedEnd = (mm: number) => (Math.abs(mm - 1.5875) < 1e-6 ? 'J1 (1.5875 mm)' : `${Number(mm.toFixed(4))} mm`);
 
 const limits = (p: Band['points'][number]) => ({ mm: p.mm, label: p.label, minHrc: p.minHrc, maxHrc: p.maxHrc });
 

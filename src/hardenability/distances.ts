@@ -30,9 +30,13 @@ export const A255_POSITIONS_SIXTEENTHS: readonly number[] = [
 
 const formatNumber = (v: number): string => String(Number(v.toFixed(6)));
 
-/** Canonical label of a distance: "J9" / "J1.5" in sixteenths, "9 mm" / "1.5 mm" in mm. */
+/**
+ * Canonical label of a distance: "J9" in whole sixteenths, "J1.5/16" for a fraction of one (a decimal
+ * after J reads as mm, see parseDistanceLabel), "9 mm" / "1.5 mm" in mm.
+ */
 export function distanceLabel(value: number, system: DistanceSystem): string {
-  return system === 'sixteenths' ? `J${formatNumber(value)}` : `${formatNumber(value)} mm`;
+  if (system === 'mm') return `${formatNumber(value)} mm`;
+  return Number.isInteger(Number(value.toFixed(6))) ? `J${formatNumber(value)}` : `J${formatNumber(value)}/16`;
 }
 
 /**
@@ -64,7 +68,11 @@ export function makeDistance(value: number, system: DistanceSystem): Distance {
 export interface ParseDistanceOptions {
   /** Unit of a bare number such as "9". Without it a bare number is refused as ambiguous. */
   bareNumberUnit?: DistanceSystem;
-  /** Unit of "J" followed by a number without unit ("J9"). Default 'sixteenths' (ASTM A255 usage). */
+  /**
+   * Unit of "J" followed by a whole number without unit ("J9"). Default 'sixteenths' (ASTM A255 usage).
+   * A decimal ("J1.5", "J1,5") is never a sixteenth position (A255 positions are whole sixteenths): it
+   * reads as mm (ISO 642 writes "J 1,5") unless this says sixteenths, when it is refused as ambiguous.
+   */
   jPrefixUnit?: DistanceSystem;
 }
 
@@ -82,7 +90,7 @@ const NUM = '(\\d+(?:[.,]\\d+)?)';
 const INCH_UNIT = '(?:in\\.?|inch|inches|")';
 
 /**
- * Parse a distance label as written on certificates: "J9", "J 9/16", "J1.5", "J 4/16 in",
+ * Parse a distance label as written on certificates: "J9", "J 9/16", "J1.5" (mm), "J 4/16 in",
  * "J 4/16 in (6.4 mm)", "9 mm", "9mm", "1,5 mm", '0.5 in', "9/16\"". Lenient about spaces, case and
  * decimal commas, but never guesses: a bare number needs `bareNumberUnit`, and a millimetre hint in
  * parentheses must agree with the inch value to its printed precision.
@@ -127,7 +135,12 @@ export function parseDistanceLabel(label: string, options: ParseDistanceOptions 
     const unit = plain[2];
     if (unit !== undefined && unit.startsWith('mm')) result = makeDistance(v, 'mm');
     else if (unit !== undefined) result = makeDistance(16 * v, 'sixteenths');
-    else if (hasJ) result = makeDistance(v, options.jPrefixUnit ?? 'sixteenths');
+    else if (hasJ && !Number.isInteger(v)) {
+      if (options.jPrefixUnit === 'sixteenths') {
+        throw new AmbiguousDistanceError(`"${original}": ASTM A255 positions are whole sixteenths of an inch; write "${plain[1]} mm" if millimetres are meant`);
+      }
+      result = makeDistance(v, 'mm');
+    } else if (hasJ) result = makeDistance(v, options.jPrefixUnit ?? 'sixteenths');
     else if (options.bareNumberUnit) result = makeDistance(v, options.bareNumberUnit);
     else {
       throw new AmbiguousDistanceError(

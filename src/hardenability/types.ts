@@ -14,7 +14,7 @@ export interface Distance {
   system: DistanceSystem;
   /** The number in the system's unit (mm, or sixteenths of an inch). */
   value: number;
-  /** Canonical label: "J9", "J1.5" (sixteenths) or "9 mm", "1.5 mm". */
+  /** Canonical label: "J9", "J1.5/16" (sixteenths) or "9 mm", "1.5 mm". */
   label: string;
 }
 

@@ -66,6 +66,13 @@ describe('catalog', () => {
     expect(second.body.version).toBe(2);
     const list = await t.request('GET', '/api/v1/grades/8620H/bands');
     expect(list.body.map((b: { version: number }) => b.version)).toEqual([2, 1]);
+    // Readings meet the limits after ASTM E29 rounding unless the band says otherwise.
+    expect(list.body.map((b: { rounding: string }) => b.rounding)).toEqual(['astm_e29', 'astm_e29']);
+    const asReported = await t.request('POST', '/api/v1/grades/8620H/bands', {
+      effectiveFrom: '2026-01-01', status: 'draft', rounding: 'as_reported', distanceSystem: 'mm', points: [{ at: 9, min: 30 }],
+    });
+    expect(asReported.body).toMatchObject({ version: 3, rounding: 'as_reported' });
+    expect((await t.request('POST', '/api/v1/grades/8620H/bands', { effectiveFrom: '2026-01-01', rounding: 'nearest', distanceSystem: 'mm', points: [{ at: 9, min: 30 }] })).status).toBe(400);
   });
   test('a band point with min above max is refused', async () => {
     const r = await t.request('POST', '/api/v1/grades/8620H/bands', { effectiveFrom: '2025-01-01', distanceSystem: 'mm', points: [{ at: 5, min: 40, max: 30 }] });

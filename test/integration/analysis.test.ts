@@ -14,6 +14,7 @@ import type { HeatCurve } from '../../src/db/series.ts';
 import { readFileSync } from 'node:fs';
 import { loadSeriesCurves, pointsAt } from '../../src/analysis/seriesData.ts';
 import { normalCdf } from '../../src/stats/distributions.ts';
+import { roundE29 } from '../../src/hardenability/conformance.ts';
 import { createRng } from '../../src/stats/random.ts';
 import { BAND_8620H, DISTANCES_MM, drawHeat, importCertificates, syntheticHistory, TRUE_SLOPES, TRUE_SIGMA } from '../fixtures/analysisHistory.ts';
 
@@ -229,7 +230,8 @@ describe('band trial', () => {
       const own = curves.filter((c) => c.mill === mill.mill);
       const direct = (limits: typeof proposed) =>
         own.filter((c) => limits.some((p) => {
-          const v = c.readings.get(p.distanceMm)!;
+          // Whole-HRC limits: the reading rounded to whole HRC by ASTM E29 (half to even), the bands' default.
+          const v = roundE29(c.readings.get(p.distanceMm)!, 0);
           return (p.minHrc !== null && v < p.minHrc) || (p.maxHrc !== null && v > p.maxHrc);
         })).map((c) => c.heatNumber);
       expect(mill.proposed.failing.map((f) => f.heatNumber).sort()).toEqual(direct(proposed).sort());

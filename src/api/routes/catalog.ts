@@ -37,6 +37,8 @@ const bandSchema = z
     effectiveFrom: isoDate,
     status: z.enum(['draft', 'active', 'retired']).default('active'),
     kind: z.enum(['standard', 'restricted']).default('standard'),
+    /** astm_e29 (default): readings rounded to the limits' places by ASTM E29 before comparing; as_reported: compared as written. */
+    rounding: z.enum(['astm_e29', 'as_reported']).default('astm_e29'),
     reason: z.string().optional(),
     /** Distances in the unit named here; stored in exact mm with the original label. */
     distanceSystem: z.enum(['mm', 'sixteenths']),
@@ -126,6 +128,7 @@ export function catalogRoutes(app: OpenAPIHono<AppEnv>, db: Db) {
         effectiveFrom: body.effectiveFrom,
         status: body.status,
         kind: body.kind,
+        rounding: body.rounding,
         reason: body.reason,
         author: c.get('auth')?.name,
         points: body.points.map((p) => {

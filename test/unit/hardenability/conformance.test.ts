@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { heatConformance, testConformance } from '../../../src/hardenability/conformance.ts';
+import { heatConformance, roundE29, testConformance } from '../../../src/hardenability/conformance.ts';
 import type { Band } from '../../../src/hardenability/bands.ts';
 import type { EndQuenchTest, TestSource } from '../../../src/hardenability/types.ts';
 import { sixteenthsToMm } from '../../../src/hardenability/distances.ts';
@@ -64,16 +64,51 @@ describe('testConformance', () => {
     expect(r.points[0]).toMatchObject({ verdict: 'pass', margin: 0 });
   });
 
-  it('interpolates a J-distance test at ISO band points, says so, and marks uncovered points not tested', () => {
+  it('interpolates a J-distance test at ISO band points, judges J1 at 1.5 mm, and says why uncovered points are not tested', () => {
     const js = [1, 2, 3, 4, 5, 6, 7, 8, 10, 12, 14, 16];
     const hrc = [46, 45, 43, 40, 37, 35, 33, 31, 29, 27, 26, 25];
     const r = testConformance(test('t4', 'receiving_inspection', '2024-03-02', hrc, js.map(sixteenthsToMm)), band);
-    // Measured range J1 = 1.5875 mm .. J16 = 25.4 mm: 1.5 mm and 30..40 mm are outside.
-    expect(r.points[0]).toMatchObject({ mm: 1.5, basis: 'not_tested', verdict: 'not_tested', margin: null });
-    expect(r.points.slice(10).every((p) => p.verdict === 'not_tested')).toBe(true);
+    // J1 = 1.5875 mm and ISO 1.5 mm are one quenched-end position (ISO 642 / ASTM A255 placing tolerance).
+    expect(r.points[0]).toMatchObject({ mm: 1.5, hrc: 46, basis: 'measured', verdict: 'pass' });
+    expect(r.points[0].position).toMatch(/J1 \(1\.5875 mm\) judged at 1\.5 mm/);
+    // Measured range J1 .. J16 = 25.4 mm: 30..40 mm are beyond it.
+    expect(r.points.slice(10).every((p) => p.verdict === 'not_tested' && /beyond the test's last reading \(25\.4 mm\)/.test(p.reason!))).toBe(true);
     expect(r.points.slice(1, 10).every((p) => p.basis === 'interpolated')).toBe(true);
     expect(r.verdict).toBe('incomplete');
-    expect(r.counts).toMatchObject({ notTested: 4, interpolated: 9 });
+    expect(r.counts).toMatchObject({ notTested: 3, interpolated: 9 });
+  });
+
+  it('an ISO test meets a band written in sixteenths at J1 the same way', () => {
+    const jBand: Band = { ...band, points: [{ mm: sixteenthsToMm(1), label: 'J1', minHrc: 41, maxHrc: 49 }, { mm: 9, minHrc: 30, maxHrc: 43 }] };
+    const r = testConformance(test('t5', 'mill_certificate', '2024-03-01', good), jBand);
+    expect(r.points[0]).toMatchObject({ hrc: 46, basis: 'measured', verdict: 'pass' });
+    expect(r.counts.notTested).toBe(0);
+  });
+});
+
+describe('rounding by ASTM E29', () => {
+  // ASTM E29 §6.4 rounding method (to the nearest; a 5 followed only by zeros goes to the even digit),
+  // clause recalled from memory; the examples are worked by hand.
+  it('rounds to the places of the limit, halves to even', () => {
+    expect(roundE29(35.4, 0)).toBe(35);
+    expect(roundE29(35.5, 0)).toBe(36);
+    expect(roundE29(34.5, 0)).toBe(34);
+    expect(roundE29(34.51, 0)).toBe(35);
+    expect(roundE29(34.45, 1)).toBe(34.4);
+    expect(roundE29(34.55, 1)).toBe(34.6);
+  });
+
+  it('by default a reading of 35.4 meets a maximum of 35 (and says what was reported), 35.5 does not', () => {
+    const at = (v: number, rounding?: Band['rounding']) => {
+      const readings = [...good];
+      readings[9] = v; // 25 mm: max 35
+      return testConformance(test('r', 'mill_certificate', '2024-03-01', readings), { ...band, rounding }).points[9];
+    };
+    expect(at(35.4)).toMatchObject({ hrc: 35, reported: 35.4, verdict: 'pass', margin: 0 });
+    expect(at(35.5)).toMatchObject({ hrc: 36, verdict: 'fail', margin: -1 });
+    expect(at(35.4, 'as_reported')).toMatchObject({ hrc: 35.4, verdict: 'fail' });
+    expect(at(35.4, 'as_reported').reported).toBeUndefined();
+    expect(testConformance(test('r', 'mill_certificate', '2024-03-01', good), band).rounding).toBe('astm_e29');
   });
 });
 

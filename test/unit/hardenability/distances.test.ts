@@ -5,6 +5,7 @@ import {
   MM_PER_SIXTEENTH,
   convertCurve,
   describeDistance,
+  distanceLabel,
   iso642PositionsMm,
   mmToSixteenths,
   parseDistanceLabel,
@@ -53,7 +54,7 @@ describe('distance systems', () => {
         fc.constantFrom<'mm' | 'sixteenths'>('mm', 'sixteenths'),
         (v, system) => {
           const value = Math.round(v * 100) / 100;
-          const d = parseDistanceLabel(system === 'mm' ? `${value} mm` : `J${value}`);
+          const d = parseDistanceLabel(distanceLabel(value, system));
           return d.system === system && Math.abs(d.value - value) < 1e-12;
         },
       ),
@@ -65,7 +66,10 @@ describe('parseDistanceLabel', () => {
   const cases: [string, number, 'mm' | 'sixteenths', string][] = [
     ['J9', 9 * 1.5875, 'sixteenths', 'J9'],
     ['J 9/16', 9 * 1.5875, 'sixteenths', 'J9'],
-    ['J1.5', 1.5 * 1.5875, 'sixteenths', 'J1.5'],
+    ['J1.5/16', 1.5 * 1.5875, 'sixteenths', 'J1.5/16'],
+    // A decimal after J is not a sixteenth position (A255 positions are whole sixteenths): ISO 642's "J 1,5" is mm.
+    ['J1.5', 1.5, 'mm', '1.5 mm'],
+    ['J 1,5', 1.5, 'mm', '1.5 mm'],
     ['J 4/16 in', 4 * 1.5875, 'sixteenths', 'J4'],
     ['j 4/16"', 4 * 1.5875, 'sixteenths', 'J4'],
     ['9/16 inch', 9 * 1.5875, 'sixteenths', 'J9'],
@@ -91,6 +95,11 @@ describe('parseDistanceLabel', () => {
     // Source: same example "J 7/16 in. (11.1 mm)"; 7 x 1.5875 = 11.1125.
     expect(parseDistanceLabel('J 7/16 in (11.1 mm)').value).toBe(7);
     expect(() => parseDistanceLabel('J 4/16 in (7 mm)')).toThrow(AmbiguousDistanceError);
+  });
+
+  it('refuses a decimal J-label when the caller says J means sixteenths', () => {
+    expect(() => parseDistanceLabel('J1.5', { jPrefixUnit: 'sixteenths' })).toThrow(AmbiguousDistanceError);
+    expect(parseDistanceLabel('J6', { jPrefixUnit: 'sixteenths' }).mm).toBeCloseTo(9.525, 12);
   });
 
   it('refuses a bare number unless the caller gives the unit', () => {

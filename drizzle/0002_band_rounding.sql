@@ -1,0 +1,2 @@
+ALTER TABLE "bands" ADD COLUMN "rounding" text DEFAULT 'astm_e29' NOT NULL;--> statement-breakpoint
+ALTER TABLE "bands" ADD CONSTRAINT "bands_rounding" CHECK ("bands"."rounding" in ('astm_e29', 'as_reported'));
