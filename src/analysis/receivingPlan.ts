@@ -6,7 +6,7 @@
 // A plan supports, and does not replace, the purchase specification and qualified judgement.
 import type { Db, Executor } from '../db/connection.ts';
 import { loadCurves, type HeatCurve } from '../db/series.ts';
-import { listLotsOfGrade, type LotRow } from '../db/receivingLots.ts';
+import { listLotsOfGrade, newestReceivedDate, type LotRow } from '../db/receivingLots.ts';
 import { listBands, listGrades } from '../db/referenceData.ts';
 import { listAlerts } from '../db/alerts.ts';
 import { bandInForce, type Band } from '../hardenability/bands.ts';
@@ -174,22 +174,27 @@ export interface PlanQuery {
   mill?: string;
   /** Default: the newest received date on file. */
   asOf?: string;
+  /**
+   * Years of history before the as-of date that are loaded (default 5): enough for the re-test record, the
+   * 12-month capability and the agreement chart, and a bound on the load for a plant with decades on file.
+   */
+  historyYears?: number;
 }
 
 /** Plans of every mill and grade (or the ones asked for). */
 export async function receivingPlans(db: Db | Executor, query: PlanQuery = {}, settings: PlanSettings = DEFAULT_PLAN_SETTINGS, agreementSettings: AgreementSettings = DEFAULT_AGREEMENT_SETTINGS): Promise<{ asOf: string | null; plans: ReceivingPlan[] }> {
   const grades = query.grade ? [query.grade] : (await listGrades(db as Db)).map((g) => g.code);
+  const asOf = query.asOf ?? (await newestReceivedDate(db, { grade: query.grade, mill: query.mill }));
+  if (asOf === null) return { asOf: null, plans: [] };
+  const from = addDays(asOf, -Math.round(365.25 * (query.historyYears ?? 5)));
   const loaded: Array<{ grade: string; lots: LotRow[]; curves: HeatCurve[]; bands: Band[] }> = [];
   for (const grade of grades) {
-    const lots = await listLotsOfGrade(db, { grade, mill: query.mill });
+    const lots = await listLotsOfGrade(db, { grade, mill: query.mill, from });
     if (lots.length === 0) continue;
-    const curves = await loadCurves(db as Db, { grade, mill: query.mill, source: 'both' });
+    const curves = await loadCurves(db as Db, { grade, mill: query.mill, from, source: 'both' });
     const bands = (await listBands(db as Db, grade)).map(toBand);
     loaded.push({ grade, lots, curves, bands });
   }
-  const newest = loaded.flatMap((g) => g.lots.map((l) => l.receivedDate)).reduce<string | null>((m, d) => (m === null || d > m ? d : m), null);
-  const asOf = query.asOf ?? newest;
-  if (asOf === null) return { asOf: null, plans: [] };
   const open = [
     ...(await listAlerts(db as Db, { rule: LAB_AGREEMENT_RULE, status: 'open', limit: 1000 })).alerts,
     ...(await listAlerts(db as Db, { rule: LAB_AGREEMENT_RULE, status: 'acknowledged', limit: 1000 })).alerts,

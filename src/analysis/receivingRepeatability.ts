@@ -25,12 +25,13 @@ export interface PlantRepeatability {
 }
 
 /** Repeatability of the receiving laboratory from heats it tested at least twice (one grade, or all). */
-export async function plantRepeatability(db: Db | Executor, query: { grade?: string } = {}): Promise<PlantRepeatability> {
+/** `from`: only heats cast on or after it (a bound on the load; default everything). */
+export async function plantRepeatability(db: Db | Executor, query: { grade?: string; from?: string } = {}): Promise<PlantRepeatability> {
   const grades = query.grade ? [query.grade] : (await listGrades(db as Db)).map((g) => g.code);
   const readings: GaugeReading[] = [];
   const heatNumbers: string[] = [];
   for (const grade of grades) {
-    const curves = await loadCurves(db as Db, { grade, source: 'receiving_inspection' });
+    const curves = await loadCurves(db as Db, { grade, from: query.from, source: 'receiving_inspection' });
     const byHeat = new Map<number, typeof curves>();
     for (const c of curves) if (c.source === 'receiving_inspection') byHeat.set(c.heatId, [...(byHeat.get(c.heatId) ?? []), c]);
     for (const tests of byHeat.values()) {

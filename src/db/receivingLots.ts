@@ -16,7 +16,8 @@ export interface LotRow {
   receivedOnFile: boolean;
 }
 
-export async function listLotsOfGrade(db: Db | Executor, query: { grade: string; mill?: string }): Promise<LotRow[]> {
+/** Lots of a grade in arrival order; `from` keeps those received (or, without a date, cast) on or after it. */
+export async function listLotsOfGrade(db: Db | Executor, query: { grade: string; mill?: string; from?: string }): Promise<LotRow[]> {
   const rows = rowsOf<Record<string, unknown>>(
     await db.execute(sql`
       select l.id as lot_id, l.lot_number, h.id as heat_id, h.heat_number, m.code as mill, h.cast_date::text as cast_date,
@@ -27,6 +28,7 @@ export async function listLotsOfGrade(db: Db | Executor, query: { grade: string;
       join mills m on m.id = h.mill_id
       where g.code = ${query.grade}
         ${query.mill ? sql`and m.code = ${query.mill}` : sql``}
+        ${query.from ? sql`and coalesce(l.received_date, h.cast_date) >= ${query.from}` : sql``}
       order by coalesce(l.received_date, h.cast_date), h.heat_number, l.lot_number`),
   );
   return rows.map((r) => ({
@@ -39,4 +41,20 @@ export async function listLotsOfGrade(db: Db | Executor, query: { grade: string;
     receivedDate: String(r.received_date ?? r.cast_date),
     receivedOnFile: r.received_date !== null && r.received_date !== undefined,
   }));
+}
+
+/** The newest received date on file (a grade and mill when given), or null with no lots. */
+export async function newestReceivedDate(db: Db | Executor, query: { grade?: string; mill?: string } = {}): Promise<string | null> {
+  const [row] = rowsOf<{ newest: string | null }>(
+    await db.execute(sql`
+      select max(coalesce(l.received_date, h.cast_date))::text as newest
+      from lots l
+      join heats h on h.id = l.heat_id
+      join grades g on g.id = h.grade_id
+      join mills m on m.id = h.mill_id
+      where true
+        ${query.grade ? sql`and g.code = ${query.grade}` : sql``}
+        ${query.mill ? sql`and m.code = ${query.mill}` : sql``}`),
+  );
+  return row?.newest ?? null;
 }

@@ -10,7 +10,8 @@ import { plantRepeatability } from '../../analysis/receivingRepeatability.ts';
 import { Caution } from '../components/caution.tsx';
 import { Select, Tag } from '../components/bits.tsx';
 import { page, type PageKit } from '../page.tsx';
-import { fmt, mmLabel, optionalDate, optionalNumber, optionalText, query } from '../params.ts';
+import { daysBefore, fmt, mmLabel, optionalDate, optionalNumber, optionalText, query } from '../params.ts';
+import { todayIso } from '../../analysis/seriesData.ts';
 import { agreementPlotSpec, biasChartSpec, type BiasChartRow } from '../specs/receiving.ts';
 
 const planWords = (p: ReceivingPlan) => (p.decision.every === 1 ? 'every lot' : `1 lot in ${p.decision.every}`);
@@ -117,7 +118,8 @@ export function receivingPage(app: Hono<any>, db: Db) {
     const asOf = optionalDate(c.req.query('asOf'), 'The as-of date');
     // Our repeatability per reading: as entered (e.g. from a gauge study), else from our repeat tests.
     const entered = optionalNumber(c.req.query('repeatability'), 'Our repeatability', { min: 0, max: 5 });
-    const repeatability = await plantRepeatability(db);
+    // The last five years of repeat tests (the plans load the same span).
+    const repeatability = await plantRepeatability(db, { from: daysBefore(asOf ?? todayIso(), 1826) });
     const sd = entered ?? repeatability.sd;
     const { asOf: used, plans } = await receivingPlans(db, { grade, mill, asOf }, undefined, { ...DEFAULT_AGREEMENT_SETTINGS, plantRepeatabilitySd: sd });
     const summary = plans.map((p) => {
