@@ -13,6 +13,8 @@ export interface SeriesQuery {
   from?: string;
   to?: string;
   source?: SeriesSource;
+  /** Measured curves only unless asked (src/db/series.ts CurveQuery.basis). */
+  basis?: CurveQuery['basis'];
 }
 
 export interface SeriesPoint {
@@ -27,7 +29,7 @@ export interface SeriesPoint {
 export const DISTANCE_MATCH_MM = 1e-6;
 
 export async function loadSeriesCurves(db: Db | Executor, query: SeriesQuery): Promise<HeatCurve[]> {
-  const q: CurveQuery = { grade: query.grade, mill: query.mill, from: query.from, to: query.to, source: query.source ?? 'mill_certificate' };
+  const q: CurveQuery = { grade: query.grade, mill: query.mill, from: query.from, to: query.to, source: query.source ?? 'mill_certificate', basis: query.basis };
   return loadCurves(db as Db, q);
 }
 

@@ -15,6 +15,12 @@ export interface CurveQuery {
   from?: string;
   to?: string;
   source?: SeriesSource;
+  /**
+   * Curves measured on a bar (default), calculated from chemistry (ASTM A255 §1.2; ISO 642 allows them by
+   * agreement), or both. A calculated curve is not a measurement of the heat, so process statistics,
+   * model training and the certificate forensics keep to measured curves unless asked.
+   */
+  basis?: 'measured' | 'calculated' | 'both';
 }
 
 export interface HeatCurve {
@@ -35,6 +41,7 @@ const chemistryColumns = ELEMENTS.map((e) => e.toLowerCase());
 
 export async function loadCurves(db: Db | Executor, query: CurveQuery): Promise<HeatCurve[]> {
   const source = query.source ?? 'mill_certificate';
+  const basis = query.basis ?? 'measured';
   const sources =
     source === 'both' ? ['mill_certificate', 'receiving_inspection', 'outside_lab'] : source === 'receiving_inspection' ? ['receiving_inspection', 'outside_lab'] : ['mill_certificate'];
   const rows = rowsOf<Record<string, unknown>>(
@@ -42,7 +49,11 @@ export async function loadCurves(db: Db | Executor, query: CurveQuery): Promise<
       with current_cert as (
         select distinct on (c.heat_id) c.* from certificates c
         join heats h on h.id = c.heat_id join grades g on g.id = h.grade_id
+        ${query.mill ? sql`join mills cm on cm.id = h.mill_id` : sql``}
         where g.code = ${query.grade}
+          ${query.mill ? sql`and cm.code = ${query.mill}` : sql``}
+          ${query.from ? sql`and h.cast_date >= ${query.from}` : sql``}
+          ${query.to ? sql`and h.cast_date <= ${query.to}` : sql``}
         order by c.heat_id, c.revision desc
       )
       select h.id as heat_id, h.heat_number, m.code as mill, h.cast_date::text as cast_date, cc.grain_size, cc.other_elements,
@@ -58,6 +69,7 @@ export async function loadCurves(db: Db | Executor, query: CurveQuery): Promise<
       join end_quench_readings r on r.test_id = t.id
       where g.code = ${query.grade}
         and t.source = any(${sql.param(sources)}::text[])
+        ${basis === 'both' ? sql`` : sql`and t.basis = ${basis}`}
         ${query.mill ? sql`and m.code = ${query.mill}` : sql``}
         ${query.from ? sql`and h.cast_date >= ${query.from}` : sql``}
         ${query.to ? sql`and h.cast_date <= ${query.to}` : sql``}

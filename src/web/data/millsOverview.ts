@@ -34,6 +34,8 @@ export interface MillGradeRow {
   trend: TrendWord;
   /** EWMA at the newest heat as a fraction of the way from centre to limit (signed), for the tooltip. */
   trendPosition: number | null;
+  /** Certificate curves stated as calculated from chemistry: left out of every figure in the row. */
+  calculatedCurves: number;
   /** Signs of edited data in the mill's certificates (even readings, too-smooth curves). */
   dataQuality: Pick<MillDataQuality, 'verdict'> & { findings: string[] };
 }
@@ -102,9 +104,10 @@ export async function millsOverview(db: Db, window: { from?: string; to?: string
       grade,
       versions: (await listBands(db, grade.code)).map(toBand),
       all: await loadSeriesCurves(db, { grade: grade.code, from: window.from, to: window.to, source: 'both' }),
+      calculated: await loadSeriesCurves(db, { grade: grade.code, from: window.from, to: window.to, source: 'both', basis: 'calculated' }),
     })),
   );
-  for (const { grade, versions, all } of loaded) {
+  for (const { grade, versions, all, calculated } of loaded) {
     const activeBand = bandInForce(versions, asOf);
     const mills = millsOf(all);
     for (const mill of mills) {
@@ -134,6 +137,7 @@ export async function millsOverview(db: Db, window: { from?: string; to?: string
         shareInBand: judged ? inBand / judged : null,
         lowest,
         openAlerts: openByKey.get(`${mill}|${grade.code}`) ?? 0,
+        calculatedCurves: curvesOfMill(calculated, mill).length,
         trend,
         trendPosition: position,
         dataQuality: dataQualityCell(

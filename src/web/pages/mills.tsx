@@ -36,7 +36,20 @@ export function millsPage(app: Hono<any>, db: Db) {
       columns: [
         { key: 'mill', label: 'Mill', cell: (r: Row) => <a href={`/grades/${encodeURIComponent(r.grade)}${query({ mill: r.mill, ...w })}`}>{r.mill}</a> },
         { key: 'grade', label: 'Grade', cell: (r: Row) => <a href={`/grades/${encodeURIComponent(r.grade)}${query(w)}`}>{r.grade}</a> },
-        { key: 'heats', label: 'Heats', numeric: true },
+        {
+          key: 'heats',
+          label: 'Heats',
+          numeric: true,
+          cell: (r: Row) =>
+            r.calculatedCurves ? (
+              <span title={`${r.calculatedCurves} certificate curve(s) stated as calculated from chemistry are left out of every figure in this row`}>
+                {r.heats} <small>(+{r.calculatedCurves} calculated)</small>
+              </span>
+            ) : (
+              String(r.heats)
+            ),
+        },
+        { key: 'calculatedCurves', label: 'Calculated curves left out', csvOnly: true },
         { key: 'sharePct', label: 'In band %', numeric: true, cell: (r: Row) => shareCell(r) },
         { key: 'failed', label: 'Out of band', numeric: true },
         { key: 'ppk', label: 'Lowest Ppk (min over distances)', numeric: true, digits: 2, cell: (r: Row) => ppkCell(r.ppk) },
@@ -94,7 +107,7 @@ export function millsPage(app: Hono<any>, db: Db) {
           <h2>Mill and grade</h2>
           {kit.table('overview', 'Mills overview', table)}
           <p class="note">
-            In band: heats whose deciding end-quench test conforms to the band in force on the cast date (a receiving re-test overrides the certificate). Lowest Ppk: the smallest Ppk over the band distances of the active band, from the mill's
+            Heats: those with a measured end-quench curve; curves a certificate states as calculated from chemistry are counted beside them and left out of every figure. In band: heats whose deciding end-quench test conforms to the band in force on the cast date (a receiving re-test overrides the certificate). Lowest Ppk: the smallest Ppk over the band distances of the active band, from the mill's
             certificate curves; as the minimum of several estimates it reads somewhat low, and its interval is worked out jointly over all the distances (Šidák), so it covers the weakest distance's true Ppk at 95 % or more. Trend: the newest EWMA value (λ = 0.2) at that distance, steady within half-way to its limit. Reporting: whether the
             mill's certificate readings favour even numbers (chi-square on even/odd) or scatter less than measured readings can (against the other
             mills' scatter); hover for the numbers. "Looks edited" is a reason to ask the mill for raw data, not proof.
