@@ -52,9 +52,10 @@ function run(label: string, count: number, pairs: number, shift: (i: number) => 
 }
 
 const started = performance.now();
-// Designed: at most one false alarm per series in 3 years, i.e. an in-control ARL of 27 pairs here, widened
-// so that 90 % of references meet it: with ARL exactly 27, 1 − exp(−15/27) = 43 % of series would alarm
-// within the 15 judged pairs after the reference (1.7 years), 1 − exp(−54/27) = 86 % within 6 years.
+// Designed: at most one false alarm per series in 3 years, i.e. an in-control ARL of 27 pairs here, rounded
+// up to the preferred number 31.5 and widened so that 90 % of references meet it: with ARL exactly 31.5,
+// 1 − exp(−15/31.5) = 38 % of series would alarm within the 15 judged pairs after the reference (1.7
+// years), 1 − exp(−54/31.5) = 82 % within 6 years.
 run('in control, 27 pairs (3 years)', 1000, 27, () => 0);
 run('in control, 66 pairs (6 years)', 1000, 66, () => 0);
 run('one lot 5 HRC apart at pair 20, clipped at 3σ (default)', 1000, 27, (i) => (i === 20 ? 5 : 0), null);

@@ -12,9 +12,11 @@
 //   laboratory's established bias in a reference window of the first pairs, σ of one pair from their
 //   moving ranges (MR̄/d2, d2(2) = 2/√π; ASTM E2587). The limits have the drift monitoring's designed
 //   false-alarm rate — at most one false alarm per mill × grade in `yearsPerFalseAlarm` (3) years at the
-//   series' own re-test rate, so an in-control ARL of pairs-a-year × 3 pairs (at least `minTargetArl`) —
-//   and are widened for the reference being estimated from m pairs so that 90 % of references meet it
-//   (Gandy & Kvaløy 2013; ewmaLimitForEstimated and targetArlHeats in src/stats/monitoringDesign.ts). Each standardised pair bias is clipped to ±`clipSigma` before charting (a Huber-type
+//   series' own re-test rate, so an in-control ARL of pairs-a-year × 3 pairs (at least `minTargetArl`,
+//   rounded up to an R10 preferred number) — and are widened for the reference being estimated from m
+//   pairs so that 90 % of references meet it (Gandy & Kvaløy 2013; ewmaLimitForEstimated and
+//   targetArlHeats in src/stats/monitoringDesign.ts). Each standardised pair bias is clipped to
+//   ±`clipSigma` before charting (a Huber-type
 //   winsorisation, as in the robust CUSUM of Lucas & Crosier 1982, Commun. Statist. 11:2669), so that
 //   one lot whose bars truly differ from the certificate — a failure on receipt, which raises its own
 //   alert — does not read as a laboratory that moved; a lasting shift still passes through.
@@ -156,6 +158,18 @@ export function labPairs(curves: readonly HeatCurve[]): LabPair[] {
 
 const D2_OF_TWO = 2 / Math.sqrt(Math.PI);
 
+/**
+ * The next R10 preferred number (ISO 3: 1, 1.25, 1.6, 2, 2.5, 3.15, 4, 5, 6.3, 8 per decade) at or above x.
+ * The designed ARL is rounded up to it — fewer false alarms than asked, never more — so that the few
+ * designs a plant needs are computed once each (a design with an estimated reference costs about a second).
+ */
+export function preferredAtLeast(x: number): number {
+  const R10 = [1, 1.25, 1.6, 2, 2.5, 3.15, 4, 5, 6.3, 8, 10];
+  const decade = 10 ** Math.floor(Math.log10(x));
+  const m = x / decade;
+  return decade * R10.find((r) => r >= m - 1e-9)!;
+}
+
 /** The bias chart of time-ordered pairs, or a note why there is none (pure). */
 export function biasChart(pairs: readonly LabPair[], settings: AgreementSettings = DEFAULT_AGREEMENT_SETTINGS): { chart: BiasChart | null; note: string | null } {
   const reference = pairs.slice(0, Math.min(settings.referencePairs, pairs.length));
@@ -173,7 +187,7 @@ export function biasChart(pairs: readonly LabPair[], settings: AgreementSettings
   const charted = values.map((v) => target + sigma * Math.max(-c, Math.min(c, (v - target) / sigma)));
   const years = Math.max(1, (Date.parse(pairs[pairs.length - 1]!.castDate) - Date.parse(pairs[0]!.castDate)) / (365.25 * 86_400_000));
   const pairsPerYear = settings.pairsPerYear ?? pairs.length / years;
-  const targetArl = Math.max(settings.minTargetArl, targetArlHeats({ heatsPerYear: pairsPerYear, yearsPerFalseAlarm: settings.yearsPerFalseAlarm }));
+  const targetArl = preferredAtLeast(Math.max(settings.minTargetArl, targetArlHeats({ heatsPerYear: pairsPerYear, yearsPerFalseAlarm: settings.yearsPerFalseAlarm })));
   const design = ewmaLimitForEstimated({ lambda: settings.lambda, targetArl, m: reference.length, guarantee: settings.guarantee });
   const chart = pairedBiasChart(charted, { target, sigma, lambda: settings.lambda, L: design.L });
   const points = pairs.map((p, i) => {

@@ -3,7 +3,7 @@
 // the statistics underneath are checked against published values in test/reference/agreement.test.ts.
 import { describe, expect, it } from 'vitest';
 import type { HeatCurve } from '../../../src/db/series.ts';
-import { biasChart, labAgreementOf, labPairs, DEFAULT_AGREEMENT_SETTINGS } from '../../../src/analysis/receivingAgreement.ts';
+import { biasChart, labAgreementOf, labPairs, preferredAtLeast, DEFAULT_AGREEMENT_SETTINGS } from '../../../src/analysis/receivingAgreement.ts';
 import { lotsDue, skipLotDecision, type LotHistoryItem } from '../../../src/analysis/skipLot.ts';
 import { createRng } from '../../../src/stats/random.ts';
 import { planOf } from '../../../src/analysis/receivingPlan.ts';
@@ -76,6 +76,12 @@ describe('the paired-bias chart', () => {
     // Without the clip the same lot fires the chart.
     const unclipped = biasChart(labPairs(curves), { ...DEFAULT_AGREEMENT_SETTINGS, clipSigma: 100 }).chart!;
     expect(unclipped.firstSignal?.index).toBe(20);
+  });
+
+  it('rounds the designed ARL up to an R10 preferred number (ISO 3), never down', () => {
+    expect([20, 21, 25, 26, 31.5, 35, 59, 63, 64, 1000].map(preferredAtLeast)).toEqual([20, 25, 25, 31.5, 31.5, 40, 63, 63, 80, 1000]);
+    const chart = biasChart(labPairs(history(30, () => 0))).chart!;
+    expect(chart.targetArl).toBeGreaterThanOrEqual(3 * chart.pairsPerYear);
   });
 
   it('says why there is no chart with too few pairs', () => {
