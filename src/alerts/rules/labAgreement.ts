@@ -4,7 +4,7 @@
 // difference mill − plant over the common distances, EWMA (λ 0.2) centred on the bias of the first
 // reference pairs, limits designed as the drift monitoring's are: at most one false alarm per mill x
 // grade in three years at the series' own re-test rate (in-control ARL = pairs a year × 3, at least 20
-// pairs), widened so that 90 % of estimated references meet it (Lucas & Saccucci 1990 Markov chain;
+// pairs, rounded up to an R10 preferred number), widened so that 90 % of estimated references meet it (Lucas & Saccucci 1990 Markov chain;
 // Gandy & Kvaløy 2013; src/stats/monitoringDesign.ts). An alert is raised when a pair the ingest brought
 // (either of its tests new) lies beyond a limit after the reference window.
 // Cause key: rule + mill + grade + side; severity warning. While open, nothing more is raised.
