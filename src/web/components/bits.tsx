@@ -49,7 +49,7 @@ const ARROWS: Record<string, string> = { rising: '↗', falling: '↘', steady: 
 export function TrendArrow(props: { word: string }) {
   const odd = props.word.startsWith('signal');
   return (
-    <span class={odd ? 'tag bad' : 'tag none'} title={`EWMA trend: ${props.word}`}>
+    <span class={odd ? 'tag bad' : 'tag none'} title={`Whole-curve level trend: ${props.word}`}>
       <span class="arrow" aria-hidden="true">
         {ARROWS[props.word] ?? '?'}
       </span>{' '}

@@ -108,7 +108,7 @@ export function millsPage(app: Hono<any>, db: Db) {
           {kit.table('overview', 'Mills overview', table)}
           <p class="note">
             Heats: those with a measured end-quench curve; curves a certificate states as calculated from chemistry are counted beside them and left out of every figure. In band: heats whose deciding end-quench test conforms to the band in force on the cast date (a receiving re-test overrides the certificate). Lowest Ppk: the smallest Ppk over the band distances of the active band, from the mill's
-            certificate curves; as the minimum of several estimates it reads somewhat low, and its interval is worked out jointly over all the distances (Šidák), so it covers the weakest distance's true Ppk at 95 % or more. Trend: the newest EWMA value (λ = 0.2) at that distance, steady within half-way to its limit. Reporting: whether the
+            certificate curves; as the minimum of several estimates it reads somewhat low, and its interval is worked out jointly over all the distances (Šidák), so it covers the weakest distance's true Ppk at 95 % or more. Trend: the whole-curve level the drift alerts watch (EWMA of the curve's mean standardised deviation against its designed limit), at the newest heat: steady within half-way to its limit, a signal beyond it or when the newest heat signals in level or shape. Reporting: whether the
             mill's certificate readings favour even numbers (chi-square on even/odd) or scatter less than measured readings can (against the other
             mills' scatter); hover for the numbers. "Looks edited" is a reason to ask the mill for raw data, not proof.
           </p>
