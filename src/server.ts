@@ -11,6 +11,10 @@ import { DEFAULT_RETRY_SCHEDULE, MIN_RECOMMENDED_SPAN_MS, describeSchedule, retr
 import { INGEST_RULES } from './alerts/rules/index.ts';
 import { isDatabaseEmpty, loadDemo } from '../seed/load.ts';
 
+/** Time to receive a request's headers, and the whole request, before Node answers 408. */
+export const HEADERS_TIMEOUT_MS = 60_000;
+export const REQUEST_TIMEOUT_MS = 600_000;
+
 /** Refusal to serve a non-local address while no API token exists. */
 export class OpenBindRefused extends Error {}
 
@@ -64,7 +68,11 @@ export async function startService(config: Config = loadConfig(), logger: Logger
   }
   dispatcher?.start();
   const server: ServerType = await new Promise((resolve) => {
-    const s = serve({ fetch: app.fetch, port: config.port, hostname: config.host }, () => resolve(s));
+    // Request time limits (node:http): the headers must arrive within HEADERS_TIMEOUT_MS and the whole
+    // request (a 200 MiB upload included) within REQUEST_TIMEOUT_MS, else Node answers 408 and closes the
+    // connection, so a slow or stalled sender cannot hold a connection open. Processing time is not
+    // capped: a 100,000-row import legitimately takes minutes.
+    const s = serve({ fetch: app.fetch, port: config.port, hostname: config.host, serverOptions: { headersTimeout: HEADERS_TIMEOUT_MS, requestTimeout: REQUEST_TIMEOUT_MS } }, () => resolve(s));
   });
   const address = server.address();
   const port = typeof address === 'object' && address ? address.port : config.port;

@@ -6,7 +6,7 @@ import { HTTPException } from 'hono/http-exception';
 import { ZodError } from 'zod';
 import { ping, type Database } from '../db/connection.ts';
 import type { Logger } from '../logger.ts';
-import { ApiError, databaseUnavailableResponse, errorResponse, isDatabaseUnavailable, loggableError, problemsOf } from './errors.ts';
+import { ApiError, databaseUnavailableResponse, errorResponse, isDatabaseUnavailable, loggableError, problemsOf, valueRefusedByDatabase } from './errors.ts';
 import { HardenabilityInputError } from '../hardenability/errors.ts';
 import type { AppEnv } from './context.ts';
 import { catalogRoutes } from './routes/catalog.ts';
@@ -86,6 +86,11 @@ export function createApp({ database, logger, version = '0.1.0', access = {} }: 
     if (isDatabaseUnavailable(error)) {
       logger.warn({ err: loggableError(error), path: c.req.path }, 'database unreachable: answered 503');
       return databaseUnavailableResponse(c);
+    }
+    const refused = valueRefusedByDatabase(error);
+    if (refused) {
+      logger.warn({ err: loggableError(error), path: c.req.path }, 'a value the database refused: answered 400');
+      return errorResponse(c, 400, 'invalid_value', refused);
     }
     logger.error({ err: loggableError(error), path: c.req.path }, 'unexpected error');
     return errorResponse(c, 500, 'internal_error', 'Something went wrong on our side; it has been logged.');

@@ -80,3 +80,21 @@ export function loggableError(error: unknown, depth = 0): Record<string, unknown
     ...(e.cause && depth < 4 ? { cause: loggableError(e.cause, depth + 1) } : {}),
   };
 }
+
+/**
+ * The database refused a value the request carried: SQLSTATE class 22 "data exception" (a number out of
+ * range for its column, text with a NUL byte or invalid encoding, an impossible date) or 54000
+ * "program_limit_exceeded" (a text too long for an index entry) (PostgreSQL manual, Appendix A). The
+ * API answers 400 with the database's reason (shortened) instead of 500: validation should have caught
+ * it, and the request, not the service, is what needs to change.
+ */
+export function valueRefusedByDatabase(error: unknown): string | null {
+  for (let e = error as { code?: unknown; message?: unknown; cause?: unknown } | undefined, depth = 0; e && depth < 8; e = e.cause as typeof e, depth++) {
+    const code = typeof e.code === 'string' ? e.code : '';
+    if (/^22[0-9A-Z]{3}$/.test(code) || code === '54000') {
+      const reason = typeof e.message === 'string' ? e.message.slice(0, 300) : code;
+      return `The database refused a value of this request: ${reason}.`;
+    }
+  }
+  return null;
+}

@@ -112,3 +112,19 @@ export async function ping(db: Db): Promise<void> {
 export function rowsOf<T>(result: unknown): T[] {
   return (result as { rows: T[] }).rows;
 }
+
+/**
+ * JSON text for a jsonb parameter. PostgreSQL's jsonb cannot hold the escape \u0000 nor an unpaired
+ * surrogate escape (manual §8.14, "JSON Types"), so such characters that came in with a document (and
+ * are echoed in its report) are stored as U+FFFD, the replacement character, instead of failing the statement.
+ */
+export function jsonbText(value: unknown): string {
+  const text = JSON.stringify(value, (_key, v: unknown) => (typeof v === 'string' ? wellFormed(v) : v));
+  // Object keys do not pass through the replacer: catch an escaped NUL left in one.
+  return text.replace(/(?<!\\)((?:\\\\)*)\\u0000/g, '$1\\ufffd');
+}
+
+/** NUL and unpaired surrogates (which jsonb refuses too) become U+FFFD. */
+function wellFormed(text: string): string {
+  return text.replace(/\u0000/g, '\ufffd').replace(/[\uD800-\uDBFF](?![\uDC00-\uDFFF])|(?<![\uD800-\uDBFF])[\uDC00-\uDFFF]/g, '\ufffd');
+}

@@ -32,6 +32,14 @@ export function todayUtc(): string {
   return new Date().toISOString().slice(0, 10);
 }
 
+/** Longest identifier (mill, grade, heat, certificate, lot, order number) and free text (laboratory) accepted:
+ * far above any real one, and below what a PostgreSQL b-tree index entry can hold (about 2.7 kB). */
+export const MAX_IDENTIFIER_LENGTH = 200;
+export const MAX_TEXT_LENGTH = 1000;
+// No NUL (PostgreSQL text cannot hold it) and no unpaired UTF-16 surrogate (not a character; it cannot be encoded as UTF-8).
+const storable = /^(?:[^\u0000\uD800-\uDFFF]|[\uD800-\uDBFF][\uDC00-\uDFFF])*$/;
+const identifier = () => z.string().max(MAX_IDENTIFIER_LENGTH, `is longer than ${MAX_IDENTIFIER_LENGTH} characters`).regex(storable, 'contains a NUL or an unpaired surrogate, which cannot be stored as text');
+const freeText = () => z.string().max(MAX_TEXT_LENGTH, `is longer than ${MAX_TEXT_LENGTH} characters`).regex(storable, 'contains a NUL or an unpaired surrogate, which cannot be stored as text');
 const wtPct = z.number({ error: 'must be a number (wt%)' }).finite().min(0, 'cannot be negative').max(100, 'cannot exceed 100 wt%');
 
 const chemistryShape = Object.fromEntries(ELEMENTS.map((e) => [e, wtPct.optional()])) as Record<Element, z.ZodOptional<typeof wtPct>>;
@@ -68,12 +76,12 @@ export function testSchema(today?: () => string) {
   return z
     .object({
       source: z.enum(TEST_SOURCES).default('mill_certificate'),
-      lotNumber: z.string().min(1).optional(),
+      lotNumber: identifier().min(1).optional(),
       testDate: pastDate(today).optional(),
       austenitizingC: z.number().min(700).max(1200).optional(),
       basis: z.enum(['measured', 'calculated']).default('measured'),
       distanceSystem: z.enum(DISTANCE_SYSTEMS),
-      laboratory: z.string().optional(),
+      laboratory: freeText().optional(),
       readings: z.array(readingSchema).min(1, 'needs at least one reading'),
     })
     .strict()
@@ -96,11 +104,11 @@ export type EndQuenchTestInput = z.infer<ReturnType<typeof testSchema>>;
 export function lotSchema(today?: () => string) {
   return z
     .object({
-      lotNumber: z.string().min(1),
+      lotNumber: identifier().min(1),
       receivedDate: pastDate(today).optional(),
       massKg: z.number().positive().optional(),
       barDiameterMm: z.number().positive().max(1000).optional(),
-      purchaseOrder: z.string().optional(),
+      purchaseOrder: identifier().optional(),
     })
     .strict();
 }
@@ -109,11 +117,11 @@ export type LotInput = z.infer<ReturnType<typeof lotSchema>>;
 export function certificateSchema(today?: () => string) {
   return z
     .object({
-      mill: z.string().min(1, 'is required'),
-      grade: z.string().min(1, 'is required'),
-      heatNumber: z.string().min(1, 'is required'),
+      mill: identifier().min(1, 'is required').regex(/\S/, 'is blank (only spaces or invisible characters)'),
+      grade: identifier().min(1, 'is required').regex(/\S/, 'is blank (only spaces or invisible characters)'),
+      heatNumber: identifier().min(1, 'is required').regex(/\S/, 'is blank (only spaces or invisible characters)'),
       castDate: pastDate(today),
-      certificateNumber: z.string().min(1).optional(),
+      certificateNumber: identifier().min(1).optional(),
       certificateDate: pastDate(today).optional(),
       grainSize: z.number().min(-1).max(15).optional(),
       chemistry: chemistrySchema,
@@ -165,8 +173,8 @@ export function problemsFromZod(error: z.ZodError, base: Partial<ValidationProbl
 export function testRecordSchema(today?: () => string) {
   return z
     .object({
-      mill: z.string().min(1, 'is required'),
-      heatNumber: z.string().min(1, 'is required'),
+      mill: identifier().min(1, 'is required').regex(/\S/, 'is blank (only spaces or invisible characters)'),
+      heatNumber: identifier().min(1, 'is required').regex(/\S/, 'is blank (only spaces or invisible characters)'),
       lot: lotSchema(today).optional(),
       test: testSchema(today),
     })

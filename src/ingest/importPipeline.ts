@@ -2,7 +2,7 @@
 // transaction (or nothing). The archived document and its per-row outcome are kept whatever happens.
 import { sql } from 'drizzle-orm';
 import type { Db, Executor } from '../db/connection.ts';
-import { rowsOf } from '../db/connection.ts';
+import { jsonbText, rowsOf } from '../db/connection.ts';
 import { applyPlan, planStore, type ApplyResult, type CertificatePlanItem, type StorePlan } from '../db/certificateStore.ts';
 import {
   certificateSchema,
@@ -371,7 +371,7 @@ function markNotWritten(report: ImportReport): void {
 
 async function finish(ex: Executor, report: ImportReport): Promise<void> {
   await ex.execute(sql`
-    update imports set status = ${report.status}, summary = ${JSON.stringify({ ...report.summary, duplicateOf: report.duplicateOf ?? null, limit: report.limit ?? null, problems: report.problems })}::jsonb,
-      row_report = ${JSON.stringify(report.items)}::jsonb, finished_at = now()
+    update imports set status = ${report.status}, summary = ${jsonbText({ ...report.summary, duplicateOf: report.duplicateOf ?? null, limit: report.limit ?? null, problems: report.problems })}::jsonb,
+      row_report = ${jsonbText(report.items)}::jsonb, finished_at = now()
     where id = ${report.importId}`);
 }

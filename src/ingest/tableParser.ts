@@ -729,6 +729,7 @@ export async function parseCertificateTable(bytes: Uint8Array, options: TablePar
   const dataRows = table.rows.filter((r) => r.row > headerRowNumber && !r.cells.every((c) => isBlankCell(c)));
   const setup = setUp(headerRow.cells, options, fileProblems, warnings);
   if (fileProblems.length) return { items: [], fileProblems, rowCount: dataRows.length, warnings };
+  if (dataRows.length === 0) return { items: [], fileProblems: [fileProblem(`the file holds column headers (row ${headerRowNumber}) but no rows of data below them`)], rowCount: 0, warnings };
 
   const today = options.today ?? todayUtc;
   const todayValue = today();
