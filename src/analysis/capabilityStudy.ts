@@ -166,8 +166,10 @@ export function capabilityAtBand(curves: readonly HeatCurve[], band: Band, optio
       return { ...base, supply, result: null, note: supply ? why : `${why}; no mill has two heats with some spread here` };
     }
     try {
-      const result = capability({ values }, limits, { confidence: options.confidence, minN: options.minN, intervalDf: options.intervalDf, fitted: options.fitted ?? 'auto' });
-      return { ...base, result, note: result.flags.smallSample ? 'small sample: treat the indices as rough' : null };
+      const censored = points.some((s) => s.censored) ? points.map((s) => s.censored ?? null) : undefined;
+      const result = capability({ values, censored }, limits, { confidence: options.confidence, minN: options.minN, intervalDf: options.intervalDf, fitted: options.fitted ?? 'auto' });
+      const notes = [result.flags.smallSample ? 'small sample: treat the indices as rough' : null, result.censoring?.note ?? null].filter((x) => x !== null);
+      return { ...base, result, note: notes.length ? notes.join('; ') : null };
     } catch (error) {
       return { ...base, result: null, note: (error as Error).message };
     }

@@ -80,7 +80,7 @@ const toTest = (t: HeatDetail['tests'][number], castDate: string): EndQuenchTest
   id: String(t.id),
   source: t.source as TestSource,
   testDate: t.testDate ?? castDate,
-  readings: t.readings.map((r) => ({ mm: r.distanceMm, hrc: r.hrc, label: r.label })),
+  readings: t.readings.map((r) => ({ mm: r.distanceMm, hrc: r.hrc, label: r.label, ...(r.censored ? { censored: r.censored } : {}) })),
 });
 
 export async function heatReview(db: Db, heatId: number): Promise<HeatReview> {

@@ -22,7 +22,9 @@ export interface SeriesPoint {
   heatNumber: string;
   mill: string;
   castDate: string;
+  /** For a reading off the scale, the bound ("<20" holds 20). */
   value: number;
+  censored?: 'below' | 'above';
 }
 
 /** Distances (mm) are matched within this tolerance; a distance from sixteenths is not a short decimal. */
@@ -65,7 +67,10 @@ export function asTest(c: HeatCurve): EndQuenchTest {
     id: String(c.testId),
     source: c.source,
     testDate: c.castDate,
-    readings: [...c.readings].map(([mm, hrc]) => ({ mm, hrc })),
+    readings: [...c.readings].map(([mm, hrc]) => {
+      const side = c.censored?.get(mm);
+      return side ? { mm, hrc, censored: side } : { mm, hrc };
+    }),
   };
 }
 

@@ -285,12 +285,13 @@ export async function testsWrittenInThisTransaction(ex: Executor, heatIds: numbe
     distances: number[];
     labels: string[];
     hrcs: number[];
+    censored: Array<string | null>;
   }>(
     await ex.execute(sql`
       select t.id as test_id, h.id as heat_id, h.heat_number, m.id as mill_id, m.code as mill, g.id as grade_id, g.code as grade,
         h.cast_date::text as cast_date, t.lot_id, t.source, t.basis, t.test_date::text as test_date, t.content_hash,
         array_agg(r.distance_mm order by r.distance_mm) as distances, array_agg(r.label order by r.distance_mm) as labels,
-        array_agg(r.hrc order by r.distance_mm) as hrcs
+        array_agg(r.hrc order by r.distance_mm) as hrcs, array_agg(r.censored order by r.distance_mm) as censored
       from end_quench_tests t
       join heats h on h.id = t.heat_id
       join mills m on m.id = h.mill_id
@@ -314,6 +315,10 @@ export async function testsWrittenInThisTransaction(ex: Executor, heatIds: numbe
     basis: r.basis,
     testDate: r.test_date,
     contentHash: r.content_hash,
-    readings: r.distances.map((mm, i) => ({ mm: Number(mm), label: r.labels[i], hrc: Number(r.hrcs[i]) })),
+    readings: r.distances.map((mm, i) => {
+      const reading = { mm: Number(mm), label: r.labels[i], hrc: Number(r.hrcs[i]) };
+      const side = r.censored[i];
+      return side === 'below' || side === 'above' ? { ...reading, censored: side } : reading;
+    }),
   }));
 }

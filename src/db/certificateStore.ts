@@ -317,16 +317,18 @@ async function insertTests(
   const distances: number[] = [];
   const labels: string[] = [];
   const hrcs: number[] = [];
+  const censored: Array<string | null> = [];
   for (const r of rows) {
     for (const reading of testByKey.get(`${r.heat_id}:${r.content_hash}`)!.readings) {
       testIds.push(Number(r.id));
       distances.push(reading.distanceMm);
       labels.push(reading.label);
       hrcs.push(reading.hrc);
+      censored.push(reading.censored ?? null);
     }
   }
   await ex.execute(sql`
-    insert into end_quench_readings (test_id, distance_mm, label, hrc)
-    select * from unnest(${p(testIds)}::bigint[], ${p(distances)}::float8[], ${p(labels)}::text[], ${p(hrcs)}::float8[])`);
+    insert into end_quench_readings (test_id, distance_mm, label, hrc, censored)
+    select * from unnest(${p(testIds)}::bigint[], ${p(distances)}::float8[], ${p(labels)}::text[], ${p(hrcs)}::float8[], ${p(censored)}::text[])`);
   return { testsCreated: rows.length, readingsCreated: testIds.length };
 }

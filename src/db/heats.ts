@@ -97,7 +97,8 @@ export interface TestView {
   austenitizingC: number | null;
   distanceSystem: string;
   laboratory: string | null;
-  readings: Array<{ distanceMm: number; label: string; hrc: number }>;
+  /** censored: a reading off the scale ('below' for "<20", 'above' for ">65"; hrc holds the bound), else null. */
+  readings: Array<{ distanceMm: number; label: string; hrc: number; censored: 'below' | 'above' | null }>;
 }
 
 export interface HeatDetail extends HeatSummary {
@@ -134,7 +135,7 @@ export async function getHeat(db: Db, id: number): Promise<HeatDetail | null> {
     await db.execute(sql`
       select t.id, t.source, t.basis, l.lot_number, c.revision as certificate_revision, t.test_date::text as test_date,
         t.austenitizing_c, t.distance_system, t.laboratory,
-        coalesce(json_agg(json_build_object('distanceMm', r.distance_mm, 'label', r.label, 'hrc', r.hrc) order by r.distance_mm)
+        coalesce(json_agg(json_build_object('distanceMm', r.distance_mm, 'label', r.label, 'hrc', r.hrc, 'censored', r.censored) order by r.distance_mm)
           filter (where r.test_id is not null), '[]') as readings
       from end_quench_tests t
       left join lots l on l.id = t.lot_id

@@ -281,9 +281,15 @@ export const endQuenchReadings = pgTable(
     distanceMm: doublePrecision('distance_mm').notNull(),
     label: text('label').notNull(),
     hrc: doublePrecision('hrc').notNull(),
+    /**
+     * A reading off the scale, written "<20" or ">65": 'below' (the hardness is under `hrc`, e.g. below
+     * the C scale's range, ASTM E18) or 'above'; null for an ordinary reading.
+     */
+    censored: text('censored'),
   },
   (t) => [
     primaryKey({ columns: [t.testId, t.distanceMm] }),
+    check('readings_censored', sql`${t.censored} is null or ${t.censored} in ('below', 'above')`),
     check('readings_distance', sql`${t.distanceMm} > 0 and ${t.distanceMm} <= 200`),
     check('readings_hrc', sql`${t.hrc} between 0 and 80`),
   ],

@@ -33,8 +33,10 @@ export interface HeatCurve {
   testId: number;
   source: 'mill_certificate' | 'receiving_inspection' | 'outside_lab';
   lotNumber: string | null;
-  /** Readings by distance in mm. */
+  /** Readings by distance in mm (a reading off the scale holds its bound, e.g. 20 for "<20"). */
   readings: Map<number, number>;
+  /** The readings off the scale, by distance: 'below' ("<20": under the value held) or 'above'. Absent: none. */
+  censored?: Map<number, 'below' | 'above'>;
 }
 
 const chemistryColumns = ELEMENTS.map((e) => e.toLowerCase());
@@ -59,7 +61,9 @@ export async function loadCurves(db: Db | Executor, query: CurveQuery): Promise<
       select h.id as heat_id, h.heat_number, m.code as mill, h.cast_date::text as cast_date, cc.grain_size, cc.other_elements,
         ${sql.raw(chemistryColumns.map((e) => `cc.${e}`).join(', '))},
         t.id as test_id, t.source, l.lot_number,
-        array_agg(r.distance_mm order by r.distance_mm) as distances, array_agg(r.hrc order by r.distance_mm) as hrcs
+        array_agg(r.distance_mm order by r.distance_mm) as distances, array_agg(r.hrc order by r.distance_mm) as hrcs,
+        array_agg(r.censored order by r.distance_mm) filter (where r.censored is not null) as censored_sides,
+        array_agg(r.distance_mm order by r.distance_mm) filter (where r.censored is not null) as censored_at
       from heats h
       join grades g on g.id = h.grade_id
       join mills m on m.id = h.mill_id
@@ -95,6 +99,7 @@ export async function loadCurves(db: Db | Executor, query: CurveQuery): Promise<
       source: r.source as HeatCurve['source'],
       lotNumber: (r.lot_number as string | null) ?? null,
       readings: new Map(distances.map((d, i) => [Number(d), Number(hrcs[i])])),
+      ...(r.censored_at ? { censored: new Map((r.censored_at as number[]).map((d, i) => [Number(d), (r.censored_sides as string[])[i] as 'below' | 'above'])) } : {}),
     };
   });
 }
@@ -104,12 +109,16 @@ export async function loadCurves(db: Db | Executor, query: CurveQuery): Promise<
  * heat has several tests (source = both), a receiving or outside-lab re-test overrides the mill
  * certificate (common practice: the buyer's own test decides), and the latest re-test wins.
  */
-export function seriesAt(curves: HeatCurve[], distanceMm: number): Array<{ heatId: number; heatNumber: string; mill: string; castDate: string; value: number }> {
+export function seriesAt(curves: HeatCurve[], distanceMm: number): Array<{ heatId: number; heatNumber: string; mill: string; castDate: string; value: number; censored?: 'below' | 'above' }> {
   const chosen = new Map<number, HeatCurve>();
   for (const c of curves) {
     if (!c.readings.has(distanceMm)) continue;
     const held = chosen.get(c.heatId);
     if (!held || held.source === 'mill_certificate' || (c.source !== 'mill_certificate' && c.testId > held.testId)) chosen.set(c.heatId, c);
   }
-  return [...chosen.values()].map((c) => ({ heatId: c.heatId, heatNumber: c.heatNumber, mill: c.mill, castDate: c.castDate, value: c.readings.get(distanceMm)! }));
+  return [...chosen.values()].map((c) => {
+    const point = { heatId: c.heatId, heatNumber: c.heatNumber, mill: c.mill, castDate: c.castDate, value: c.readings.get(distanceMm)! };
+    const side = c.censored?.get(distanceMm);
+    return side ? { ...point, censored: side } : point;
+  });
 }

@@ -33,6 +33,8 @@ export interface PointConformance {
   position?: string;
   /** Why a point was not tested. */
   reason?: string;
+  /** The reading was off the scale: 'below' ("<20") or 'above' (">65"); hrc holds the bound. */
+  censored?: 'below' | 'above';
   verdict: PointVerdict;
   /**
    * Signed distance in HRC to the nearer limit: min(hrc - min, max - hrc) over the limits present.
@@ -120,6 +122,7 @@ export function testConformance(test: EndQuenchTest, band: Band, options: TestCo
         position = `the reading at ${describeQuenchedEnd(exact.mm)} judged at ${describeQuenchedEnd(p.mm)}: the same quenched-end position (ISO 642 and ASTM A255)`;
       }
     }
+    if (exact?.censored) return censoredPoint(p, exact.hrc, exact.censored, position);
     let hrc: number | null = exact ? exact.hrc : interpolateAt(p.mm);
     const basis: PointConformance['basis'] = exact ? 'measured' : hrc === null ? 'not_tested' : 'interpolated';
     if (hrc === null) {
@@ -183,6 +186,33 @@ export function testConformance(test: EndQuenchTest, band: Band, options: TestCo
 const describeQuenchedEnd = (mm: number) => (Math.abs(mm - 1.5875) < 1e-6 ? 'J1 (1.5875 mm)' : `${Number(mm.toFixed(4))} mm`);
 
 const limits = (p: Band['points'][number]) => ({ mm: p.mm, label: p.label, minHrc: p.minHrc, maxHrc: p.maxHrc });
+
+/**
+ * A reading off the scale ("<20", ">65") at a band point: "<v" fails a minimum of v or more (the hardness
+ * is under it) and meets any maximum of v or more; ">v" fails a maximum of v or less and meets any
+ * minimum of v or less. Where a limit lies beyond the bound ("<20" against a minimum of 18) the reading
+ * cannot decide, and the point is not tested, with the reason. The margin is the bound's distance to the
+ * limit it fails (negative), or null.
+ */
+function censoredPoint(p: Band['points'][number], bound: number, side: 'below' | 'above', position: string | undefined): PointConformance {
+  const written = `${side === 'below' ? '<' : '>'}${bound}`;
+  const base = { ...limits(p), hrc: bound, basis: 'measured' as const, censored: side, ...(position ? { position } : {}) };
+  if (side === 'below') {
+    const failsMin = p.minHrc !== undefined && p.minHrc >= bound;
+    if (failsMin) return { ...base, verdict: 'fail', margin: bound - p.minHrc!, governingLimit: 'min' };
+    const maxOk = p.maxHrc === undefined || p.maxHrc >= bound;
+    if (p.minHrc === undefined && maxOk) return { ...base, verdict: 'pass', margin: null, governingLimit: null };
+    return { ...base, verdict: 'not_tested', margin: null, governingLimit: null, reason: undecided(written, p) };
+  }
+  const failsMax = p.maxHrc !== undefined && p.maxHrc <= bound;
+  if (failsMax) return { ...base, verdict: 'fail', margin: p.maxHrc! - bound, governingLimit: 'max' };
+  const minOk = p.minHrc === undefined || p.minHrc <= bound;
+  if (p.maxHrc === undefined && minOk) return { ...base, verdict: 'pass', margin: null, governingLimit: null };
+  return { ...base, verdict: 'not_tested', margin: null, governingLimit: null, reason: undecided(written, p) };
+}
+
+const undecided = (written: string, p: Band['points'][number]) =>
+  `the reading ${written} HRC is off the scale and cannot show whether ${[p.minHrc !== undefined ? `the minimum of ${p.minHrc}` : '', p.maxHrc !== undefined ? `the maximum of ${p.maxHrc}` : ''].filter(Boolean).join(' and ')} HRC is met`;
 
 /**
  * How to decide a heat with several tests:

@@ -24,6 +24,8 @@ export interface Reading {
   hrc: number;
   /** Label as written on the certificate, if known. */
   label?: string;
+  /** Off the scale: 'below' ("<20": the hardness is under `hrc`) or 'above' (">65": over it). */
+  censored?: 'below' | 'above';
 }
 
 /** Who produced an end-quench test. */

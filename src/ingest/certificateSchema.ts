@@ -69,6 +69,8 @@ export const readingSchema = z
     /** Distance from the quenched end in the test's distance system (mm or sixteenths of an inch). */
     at: z.number({ error: 'must be a number' }).finite().gt(0, 'must be greater than 0'),
     hrc: z.number({ error: 'must be a number (HRC)' }).finite().min(0, 'cannot be negative').max(MAX_HRC, `above ${MAX_HRC} HRC is beyond any steel`),
+    /** A reading off the scale: 'below' for "<20" (hrc = 20, the hardness is under it), 'above' for ">65". */
+    censored: z.enum(['below', 'above']).optional(),
   })
   .strict();
 

@@ -15,6 +15,7 @@ export interface PreparedReading {
   distanceMm: number;
   label: string;
   hrc: number;
+  censored?: 'below' | 'above';
 }
 
 export interface PreparedTest {
@@ -74,7 +75,7 @@ export interface CertificateDocument {
   certificateDate: string | null;
   grainSize: number | null;
   chemistry: Record<string, number>;
-  curves: Array<{ distanceSystem: DistanceSystem; basis: string; testDate: string | null; lotNumber: string | null; readings: Array<[number, number]> }>;
+  curves: Array<{ distanceSystem: DistanceSystem; basis: string; testDate: string | null; lotNumber: string | null; readings: Array<[number, number] | [number, number, string]> }>;
 }
 
 export function heatKey(mill: string, heatNumber: string): string {
@@ -108,7 +109,7 @@ function prepareTest(t: EndQuenchTestInput, salt: string): PreparedTest {
     .sort((a, b) => a.at - b.at)
     .map((r) => {
       const at = makeDistance(r.at, t.distanceSystem);
-      return { distanceMm: at.mm, label: at.label, hrc: r.hrc };
+      return { distanceMm: at.mm, label: at.label, hrc: r.hrc, ...(r.censored ? { censored: r.censored } : {}) };
     });
   const prepared = {
     source: t.source,
@@ -152,7 +153,9 @@ export function prepareCertificate(c: CertificateInput): PreparedCertificate {
         basis: t.basis,
         testDate: t.testDate ?? null,
         lotNumber: t.lotNumber ?? null,
-        readings: [...t.readings].sort((a, b) => a.at - b.at).map((r) => [r.at, r.hrc] as [number, number]),
+        // A censored reading carries its side as a third element; ordinary ones keep the two-element form
+        // (so the content hash of every certificate stored before censoring existed is unchanged).
+        readings: [...t.readings].sort((a, b) => a.at - b.at).map((r) => (r.censored ? [r.at, r.hrc, r.censored] : [r.at, r.hrc]) as [number, number] | [number, number, string]),
       }))
       .sort((a, b) => canonicalJson(a).localeCompare(canonicalJson(b))),
   };

@@ -260,8 +260,12 @@ function setUp(headerCells: RawCell[], options: TableParseOptions, fileProblems:
 interface Reading {
   position: DistancePosition;
   hrc: number;
+  censored?: 'below' | 'above';
   origin: Origin;
 }
+
+/** A reading off the scale as mills write it: "<20", "< 20 HRC", "≤20", ">65", "> 65 HRC". */
+const CENSORED_READING = /^\s*(<|>|≤|≥|<=|>=)\s*(\d+(?:[.,]\d+)?)\s*(?:hrc)?\s*$/i;
 
 interface RowData {
   row: number;
@@ -319,12 +323,20 @@ function readRow(raw: RawRow, setup: Setup, warnings: ValidationProblem[]): RowD
     if (column.role.kind === 'distance') {
       if (isBlankCell(cell)) continue;
       const origin: Origin = { row: raw.row, column: column.header, raw: cell };
+      const off = typeof cell === 'string' ? CENSORED_READING.exec(cell) : null;
+      if (off) {
+        const bound = parseNumberCell(off[2], setup.numberFormat);
+        if (bound.ok && bound.value !== undefined) {
+          data.readings.push({ position: column.role.position, hrc: bound.value, censored: off[1].startsWith('<') || off[1] === '≤' ? 'below' : 'above', origin });
+        } else {
+          data.problems.push(problem(origin, 'hrc', bound.ok ? 'an off-scale reading needs its bound, e.g. "<20"' : bound.reason));
+          data.failedReadings = true;
+        }
+        continue;
+      }
       const read = parseNumberCell(cell, setup.numberFormat);
       if (!read.ok) {
-        const reason = typeof cell === 'string' && cell.trim().startsWith('<')
-          ? `${JSON.stringify(cell.trim())} is a less-than value; a hardness reading must be a number (leave the cell empty when not measured)`
-          : read.reason;
-        data.problems.push(problem(origin, 'hrc', reason));
+        data.problems.push(problem(origin, 'hrc', read.reason));
         data.failedReadings = true;
       } else if (read.value !== undefined) data.readings.push({ position: column.role.position, hrc: read.value, origin });
       continue;
@@ -424,7 +436,7 @@ function buildTest(row: RowData, prefix: string, provenance: Provenance | null, 
   if (row.failedReadings) failed.add(`${prefix}readings`);
   const system: DistanceSystem | undefined = readings[0]?.position.system;
   test.distanceSystem = system ?? 'mm';
-  test.readings = readings.map((r) => ({ at: r.position.at, hrc: r.hrc }));
+  test.readings = readings.map((r) => (r.censored ? { at: r.position.at, hrc: r.hrc, censored: r.censored } : { at: r.position.at, hrc: r.hrc }));
   if (provenance) {
     provenance.set(`${prefix}distanceSystem`, { row: row.row, raw: undefined });
     readings.forEach((r, j) => {

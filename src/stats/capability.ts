@@ -48,6 +48,7 @@
 // default rule 1, on the individuals chart, or on the standardised X-bar of an X-bar/S chart, or an
 // S chart point beyond its limits; with a given within sigma, the individuals rules use that sigma
 // around the series mean).
+import { censoredNormalFit, type Censoring } from './censoredNormal.ts';
 import { chiSquareQuantile, normalCdf, normalQuantile } from './distributions.ts';
 import { StatsInputError, assertFinite, quantileSorted } from './descriptive.ts';
 import { andersonDarling, type AndersonDarlingResult } from './andersonDarling.ts';
@@ -67,7 +68,11 @@ export interface SpecBand {
   target?: number | null;
 }
 
-export type CapabilityData = { values: readonly number[] } | { subgroups: readonly (readonly number[])[] };
+/**
+ * Individual values (with, optionally, which of them are bounds of readings off the scale: 'below' for
+ * "<20", 'above' for ">65") or rational subgroups.
+ */
+export type CapabilityData = { values: readonly number[]; censored?: readonly Censoring[] } | { subgroups: readonly (readonly number[])[] };
 
 export interface CapabilityOptions {
   /** Confidence level of the intervals (default 0.95). */
@@ -244,6 +249,13 @@ export interface CapabilityResult {
    * so their 0.135 % and 99.865 % points are about the minimum and maximum and the index reads high.
    */
   flags: { smallSample: boolean; nonNormal: boolean; unstable: boolean; percentileFewData: boolean };
+  /**
+   * Readings off the scale among the values: the overall mean and σ (so Pp, Ppk and the overall expected
+   * PPM) are then the censored-normal MLE (Cohen 1959; censoredNormal.ts), a "<v" reading counts as
+   * observed nonconforming where the minimum is v or more (">v" where the maximum is v or less), and the
+   * within σ takes each bound as the value (an approximation, said in `note`). Null: none.
+   */
+  censoring: { below: number; above: number; method: string; note: string } | null;
 }
 
 const NO_SPREAD = 'capability is undefined for a series with no spread (sigma = 0)';
@@ -428,10 +440,23 @@ export function capability(data: CapabilityData, band: SpecBand, options: Capabi
   const sorted = Float64Array.from(values).sort();
   let sum = 0;
   for (const x of values) sum += x;
-  const mu = sum / n;
+  let mu = sum / n;
   let ss = 0;
   for (const x of values) ss += (x - mu) ** 2;
-  const sigmaOverall = Math.sqrt(ss / (n - 1));
+  let sigmaOverall = Math.sqrt(ss / (n - 1));
+  const censored = 'values' in data && data.censored?.some((c) => c) ? data.censored : null;
+  let censoring: CapabilityResult['censoring'] = null;
+  if (censored) {
+    const fit = censoredNormalFit(values, censored);
+    mu = fit.mean;
+    sigmaOverall = fit.sd;
+    censoring = {
+      below: fit.below,
+      above: fit.above,
+      method: 'censored-normal maximum likelihood (Cohen 1959), by EM',
+      note: `${fit.below + fit.above} reading(s) off the scale: the overall mean and sigma are their censored-normal estimate; the within sigma (moving ranges) takes each bound as the value`,
+    };
+  }
   if (!(sigmaOverall > 0) || !(sigmaWithin > 0)) throw new StatsInputError(NO_SPREAD);
 
   const within = indices(mu, sigmaWithin, lsl, usl);
@@ -441,15 +466,23 @@ export function capability(data: CapabilityData, band: SpecBand, options: Capabi
 
   let below = 0;
   let above = 0;
-  for (const x of values) {
-    if (lsl !== null && x < lsl) below++;
-    if (usl !== null && x > usl) above++;
-  }
+  values.forEach((x, i) => {
+    const side = censored?.[i];
+    if (side === 'below') {
+      if (lsl !== null && x <= lsl) below++;
+    } else if (side === 'above') {
+      if (usl !== null && x >= usl) above++;
+    } else {
+      if (lsl !== null && x < lsl) below++;
+      if (usl !== null && x > usl) above++;
+    }
+  });
   const observedPpm = { below: (1e6 * below) / n, above: (1e6 * above) / n, total: (1e6 * (below + above)) / n };
 
   let normality: AndersonDarlingResult | null = null;
   let judgement: NormalityJudgement | null = null;
-  if (n >= 3) {
+  // Bounds are not readings: no normality test or fitted shape on them.
+  if (n >= 3 && !censored) {
     normality = andersonDarling(values);
     judgement = judgeNormality(values, normalityAlpha);
   }
@@ -459,7 +492,8 @@ export function capability(data: CapabilityData, band: SpecBand, options: Capabi
   const fittedMode = options.fitted ?? 'never';
   let fitted: FittedCapability | null = null;
   let fitProblem: string | null = null;
-  if (fittedMode === 'always' || (fittedMode === 'auto' && nonNormal)) {
+  if (censored) fitProblem = 'readings off the scale: no distribution shape is fitted to bounds';
+  else if (fittedMode === 'always' || (fittedMode === 'auto' && nonNormal)) {
     const distinct = new Set(values).size;
     if (n < 10) fitProblem = `${n} values: too few to fit a distribution`;
     else if (distinct < MIN_DISTINCT_FOR_FIT) fitProblem = `the readings take only ${distinct} distinct values: too coarse to fit a distribution's shape`;
@@ -480,7 +514,7 @@ export function capability(data: CapabilityData, band: SpecBand, options: Capabi
     return { p00135, p50, p99865, pp, ppu, ppl, ppk };
   };
   let percentile: PercentileIndices | null = null;
-  if (percentileMode === 'always' || (percentileMode === 'auto' && nonNormal && n >= PERCENTILE_MIN_N)) {
+  if (!censored && (percentileMode === 'always' || (percentileMode === 'auto' && nonNormal && n >= PERCENTILE_MIN_N))) {
     const interval =
       n >= PERCENTILE_MIN_N ? (bootstrapPercentile(values, (sample) => [percentileIndices(Float64Array.from(sample).sort()).ppk], bootOptions)[0] ?? null) : null;
     percentile = { ...percentileIndices(sorted), interval };
@@ -523,5 +557,6 @@ export function capability(data: CapabilityData, band: SpecBand, options: Capabi
     percentile,
     unstablePoints,
     flags: { smallSample: n < minN, nonNormal, unstable: unstablePoints.length > 0, percentileFewData: percentile !== null && n < PERCENTILE_MIN_N },
+    censoring,
   };
 }

@@ -7,6 +7,8 @@ import beta from '@stdlib/stats-base-dists-beta';
 
 /** Standard normal CDF Φ(x). */
 export const normalCdf = (x: number): number => normal.cdf(x, 0, 1);
+/** Standard normal density φ(x). */
+export const normalPdf = (x: number): number => normal.pdf(x, 0, 1);
 /** Standard normal quantile Φ⁻¹(p). */
 export const normalQuantile = (p: number): number => normal.quantile(p, 0, 1);
 export const tCdf = (x: number, df: number): number => t.cdf(x, df);

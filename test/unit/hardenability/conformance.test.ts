@@ -152,3 +152,24 @@ describe('heatConformance', () => {
     expect(heatConformance([], band).verdict).toBe('no_tests');
   });
 });
+
+describe('readings off the scale', () => {
+  // Our rule, stated in conformance.ts: "<v" fails a minimum of v or more and meets any maximum of v or
+  // more; ">v" fails a maximum of v or less; a limit beyond the bound cannot be decided by the reading.
+  const at25 = (reading: { hrc: number; censored: 'below' | 'above' }, point: { minHrc?: number; maxHrc?: number }) =>
+    testConformance({ id: 'c', source: 'mill_certificate', testDate: '2024-03-01', readings: [{ mm: 1.5, hrc: 45 }, { mm: 25, ...reading }] }, { ...band, points: [{ mm: 25, ...point }] }).points[0];
+
+  it('"<20" fails a minimum of 20 or 21, meets a maximum of 35, and cannot decide a minimum of 18', () => {
+    expect(at25({ hrc: 20, censored: 'below' }, { minHrc: 20, maxHrc: 35 })).toMatchObject({ verdict: 'fail', censored: 'below', margin: 0, governingLimit: 'min' });
+    expect(at25({ hrc: 20, censored: 'below' }, { minHrc: 21, maxHrc: 35 })).toMatchObject({ verdict: 'fail', margin: -1 });
+    expect(at25({ hrc: 20, censored: 'below' }, { maxHrc: 35 })).toMatchObject({ verdict: 'pass', margin: null });
+    const open = at25({ hrc: 20, censored: 'below' }, { minHrc: 18, maxHrc: 35 });
+    expect(open).toMatchObject({ verdict: 'not_tested' });
+    expect(open.reason).toMatch(/<20 HRC is off the scale and cannot show whether the minimum of 18/);
+  });
+
+  it('">65" fails a maximum of 60 and meets a minimum of 50 with no maximum', () => {
+    expect(at25({ hrc: 65, censored: 'above' }, { minHrc: 50, maxHrc: 60 })).toMatchObject({ verdict: 'fail', margin: -5, governingLimit: 'max' });
+    expect(at25({ hrc: 65, censored: 'above' }, { minHrc: 50 })).toMatchObject({ verdict: 'pass' });
+  });
+});

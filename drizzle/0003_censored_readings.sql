@@ -1,0 +1,2 @@
+ALTER TABLE "end_quench_readings" ADD COLUMN "censored" text;--> statement-breakpoint
+ALTER TABLE "end_quench_readings" ADD CONSTRAINT "readings_censored" CHECK ("end_quench_readings"."censored" is null or "end_quench_readings"."censored" in ('below', 'above'));
