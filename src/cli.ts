@@ -1,5 +1,5 @@
 // The `endquench` command line.
-import { readFile } from 'node:fs/promises';
+import { readFile, writeFile } from 'node:fs/promises';
 import { basename, extname } from 'node:path';
 import { Command, InvalidArgumentError } from 'commander';
 import cliProgress from 'cli-progress';
@@ -60,8 +60,12 @@ program
   .option('--accept-valid', 'write the valid rows and report the others (default: any invalid row rejects the file)')
   .option('--create-missing', 'create mills and grades not yet on file')
   .option('--revise', 'store changed certificates as new revisions')
+  .option('--mill <code>', 'a table without a mill column: the mill that sent it (headers are recognised when no layout is given)')
+  .option('--distance-unit <unit>', 'a table without a layout: the unit of whole-number J headers (mm or sixteenths) when their set does not say it')
+  .option('--save-layout <file>', 'write the recognised header mapping as a mill layout (JSON) to use with --mill-layout')
   .option('--json', 'print the full report as JSON')
   .action(async (file: string, opts) => {
+    if (opts.distanceUnit !== undefined && opts.distanceUnit !== 'mm' && opts.distanceUnit !== 'sixteenths') throw new InvalidArgumentError('--distance-unit must be mm or sixteenths');
     const config = loadConfig();
     const format: ImportFormat = opts.format ?? formatOption(extname(file).slice(1).toLowerCase());
     const bytes = new Uint8Array(await readFile(file));
@@ -84,6 +88,8 @@ program
         format,
         filename: basename(file),
         layout,
+        millCode: opts.mill,
+        distanceUnit: opts.distanceUnit,
         createdBy: 'cli',
         afterWrite: runIngestRules,
         options: { dryRun: opts.dryRun, acceptValid: opts.acceptValid, createMissing: opts.createMissing, revise: opts.revise },
@@ -95,6 +101,10 @@ program
         },
       });
       bar?.stop();
+      if (opts.saveLayout) {
+        if (!report.mapping?.layout) throw new InvalidArgumentError(`no layout to save: ${report.mapping ? report.mapping.missing.join('; ') : 'a layout was given, or the file is JSON'}`);
+        await writeFile(opts.saveLayout, `${JSON.stringify(report.mapping.layout, null, 2)}\n`);
+      }
       if (opts.json) console.log(JSON.stringify(report, null, 2));
       else console.log(formatReport(report));
       process.exitCode = report.status === 'rejected' ? 1 : 0;
@@ -109,6 +119,13 @@ export function formatReport(report: ImportReport): string {
     `Import ${report.importId}: ${report.status.replace('_', ' ')}.`,
     `  ${s.items} item(s): ${s.valid} valid, ${s.invalid} with problems; ${s.created} heat(s) new, ${s.revised} revised, ${s.unchanged} unchanged; ${s.testsAdded} test(s) and ${s.readingsAdded} reading(s) written.`,
   ];
+  if (report.mapping && !report.mapping.ownLayout) {
+    lines.push('  Columns (headers recognised; save them as a layout with --save-layout):');
+    for (const line of report.mapping.lines) lines.push(`    ${line}`);
+  } else if (report.mapping?.missing.length) {
+    for (const m of report.mapping.missing) lines.push(`  Missing: ${m}.`);
+  }
+  if (report.dryRun) lines.push(`  ${report.dryRun.message}`);
   const problems = [...report.problems, ...report.items.flatMap((i) => i.problems)];
   if (problems.length) {
     lines.push(`  Problems (${problems.length}):`);

@@ -13,7 +13,9 @@ import {
   type ValidationProblem,
 } from './certificateSchema.ts';
 import { prepareCertificate, prepareTestRecord, sha256, type FieldDifference } from './prepare.ts';
-import type { MillLayout } from './millLayout.ts';
+import { loadMillLayout, type MillLayout } from './millLayout.ts';
+import { previewTableHeaders, type HeaderMapping } from './headerRecognition.ts';
+import type { DistanceSystem } from './certificateSchema.ts';
 import { XlsxLimitError } from './xlsxReader.ts';
 
 export type ImportFormat = 'json' | 'csv' | 'xlsx';
@@ -36,6 +38,10 @@ export interface ImportRequest {
   format: ImportFormat;
   filename?: string;
   layout?: MillLayout;
+  /** A table without a layout: the mill code for a file with no mill column (header recognition, src/ingest/headerRecognition.ts). */
+  millCode?: string;
+  /** A table without a layout: the unit of whole-number J headers when their set does not say it. */
+  distanceUnit?: DistanceSystem;
   options?: ImportOptions;
   createdBy?: string;
   today?: () => string;
@@ -79,6 +85,10 @@ export interface ImportReport {
   };
   problems: ValidationProblem[];
   items: ItemOutcome[];
+  /** A table read without a layout: which column became what, what was ignored, what is missing. */
+  mapping?: HeaderMapping;
+  /** Dry runs: whether an import of the same file would write anything, in words. */
+  dryRun?: { wouldWrite: number; message: string };
 }
 
 interface ParsedDocument {
@@ -100,6 +110,47 @@ export class ImportError extends Error {
 }
 
 export async function runImport(db: Db, request: ImportRequest): Promise<ImportReport> {
+  // A table without a layout: recognise the mill's own header names; when they are not our own
+  // layout's, the recognised mapping is used as the layout (and archived with the document).
+  let mapping: HeaderMapping | undefined;
+  if (request.format !== 'json' && !request.layout) {
+    try {
+      mapping = await previewTableHeaders(request.bytes, request.format, { millCode: request.millCode, distanceUnit: request.distanceUnit });
+    } catch {
+      mapping = undefined; // unreadable: the parser says why
+    }
+    if (mapping && !mapping.ownLayout && mapping.layout) {
+      try {
+        request = { ...request, layout: loadMillLayout(mapping.layout) };
+      } catch {
+        // not usable as a layout: the parser reports against our own layout
+      }
+    }
+  }
+  const report = await importDocument(db, request);
+  if (mapping) report.mapping = mapping;
+  if (request.options?.dryRun) report.dryRun = dryRunVerdict(report, Boolean(request.options.acceptValid));
+  return report;
+}
+
+/** What an import of the same file would do, from a dry run's item statuses (the same rule as the real import). */
+export function dryRunVerdict(report: ImportReport, acceptValid: boolean): { wouldWrite: number; message: string } {
+  const s = report.summary;
+  const clean = s.invalid === 0 && report.problems.length === 0;
+  const forbidden = report.items.some((i) => i.status === 'forbidden');
+  const writes = report.items.filter((i) => i.status === 'created' || i.status === 'revised' || i.status === 'added').length;
+  if (report.status === 'duplicate') return { wouldWrite: 0, message: `Dry run: nothing was written, and an import would write nothing either: this document was already imported (import ${report.duplicateOf}).` };
+  if (report.status !== 'validated') return { wouldWrite: 0, message: `Dry run: nothing was written, and an import would write nothing either: ${report.problems[0]?.message ?? 'the file was refused'}.` };
+  let why: string | undefined;
+  if (s.items === 0) why = report.problems.length ? `no row could be read (${report.problems.length} problem(s) with the file as a whole, listed below)` : 'the file holds no rows to import';
+  else if (forbidden) why = 'it holds another mill\'s heats';
+  else if (!clean && !acceptValid) why = `${s.invalid} item(s) have problems and any problem rejects the whole file (accept-valid writes the valid ones)`;
+  else if (writes === 0) why = `every one of its ${s.items} item(s) is already on file unchanged`;
+  if (why) return { wouldWrite: 0, message: `Dry run: nothing was written, and an import of this file would write nothing either: ${why}.` };
+  return { wouldWrite: writes, message: `Dry run: nothing was written. An import would write ${writes} item(s) (${s.created} new heat(s), ${s.revised} revised, ${report.items.filter((i) => i.status === 'added').length} re-test(s)); ${s.unchanged} unchanged${s.invalid ? `, ${s.invalid} with problems left out` : ''}.` };
+}
+
+async function importDocument(db: Db, request: ImportRequest): Promise<ImportReport> {
   const options = request.options ?? {};
   const digest = sha256(request.bytes);
   const [archived] = rowsOf<{ id: number }>(

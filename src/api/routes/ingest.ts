@@ -23,6 +23,19 @@ const reportSchema = z
     summary: z.record(z.string(), z.number()),
     problems: z.array(z.object({ row: z.number().optional(), column: z.string().optional(), path: z.string(), message: z.string() })),
     items: z.array(z.record(z.string(), z.unknown())),
+    mapping: z
+      .object({
+        headerRow: z.number().int(),
+        columns: z.array(z.record(z.string(), z.unknown())),
+        missing: z.array(z.string()),
+        notes: z.array(z.string()),
+        ownLayout: z.boolean(),
+        layout: z.record(z.string(), z.unknown()).nullable(),
+        lines: z.array(z.string()),
+      })
+      .optional()
+      .openapi({ description: 'A table read without a layout: which column became what (columns), what is missing, in sentences (lines); layout is the same mapping as a mill layout to save.' }),
+    dryRun: z.object({ wouldWrite: z.number().int(), message: z.string() }).optional(),
   })
   .openapi('ImportReport');
 
@@ -119,7 +132,7 @@ export function ingestRoutes(app: OpenAPIHono<AppEnv>, db: Db) {
     tags: ['ingest'],
     summary: 'Import a file of certificates and end-quench tests (CSV, XLSX or JSON)',
     description:
-      'Send the file as the raw body (format from the format query, the file name or the content type) or as multipart/form-data with a "file" part and an optional "layout" part (a mill layout JSON). By default any invalid row rejects the whole file and nothing is written but the archived document; acceptValid=true writes the valid rows. dryRun=true only validates. Role: mill (own mill only), engineer, admin.',
+      'Send the file as the raw body (format from the format query, the file name or the content type) or as multipart/form-data with a "file" part and an optional "layout" part (a mill layout JSON). By default any invalid row rejects the whole file and nothing is written but the archived document; acceptValid=true writes the valid rows. dryRun=true only validates: the dryRun.message of the report says whether an import would write anything. A table without a layout has its headers recognised (heat, heat no., charge, melt; C %, Mn %; J1.5, J 1,5 mm, 1.5 mm, J1 ... J16; docs/import-format.md); the mapping of the report says which column became what, what was ignored and what is missing, and mapping.layout is the same as a mill layout that can be saved and sent again. Role: mill (own mill only), engineer, admin.',
     request: {
       query: z.object({
         format: z.enum(['csv', 'xlsx', 'json']).optional(),
@@ -128,6 +141,8 @@ export function ingestRoutes(app: OpenAPIHono<AppEnv>, db: Db) {
         acceptValid: z.enum(['true', 'false']).optional(),
         createMissing: z.enum(['true', 'false']).optional(),
         revise: z.enum(['true', 'false']).optional(),
+        mill: z.string().optional().openapi({ description: 'A table without a layout and without a mill column: the mill code (a mill token: its own mill).' }),
+        distanceUnit: z.enum(['mm', 'sixteenths']).optional().openapi({ description: 'A table without a layout: the unit of whole-number J headers (J3, J5 ...) when their set does not say it.' }),
       }),
     },
     responses: {
@@ -147,6 +162,8 @@ export function ingestRoutes(app: OpenAPIHono<AppEnv>, db: Db) {
         acceptValid: flag,
         createMissing: flag,
         revise: flag,
+        mill: z.string().trim().min(1).optional(),
+        distanceUnit: z.enum(['mm', 'sixteenths']).optional(),
       })
       .parse(c.req.query());
     let bytes: Uint8Array;
@@ -180,6 +197,8 @@ export function ingestRoutes(app: OpenAPIHono<AppEnv>, db: Db) {
       format,
       filename,
       layout,
+      millCode: q.mill ?? c.get('auth')?.millScope,
+      distanceUnit: q.distanceUnit,
       createdBy: c.get('auth')?.name,
       options: { dryRun: q.dryRun, acceptValid: q.acceptValid, createMissing: q.createMissing, revise: q.revise, onlyMill: c.get('auth')?.millScope },
       afterWrite: c.get('afterWrite'),
