@@ -4,6 +4,7 @@
 // signals this heat raised on its mill's series (individuals with Nelson rules, EWMA, CUSUM; controlCharts.ts)
 // over the two years of history up to and including it. Copies are looked for among the same mill's
 // heats of the grade cast within a year either side.
+import { curveFigures, type CurveFigures } from '../hardenability/curveFigures.ts';
 import type { Db } from '../db/connection.ts';
 import { getHeat, type HeatDetail } from '../db/heats.ts';
 import { findGrade } from '../db/referenceData.ts';
@@ -30,8 +31,10 @@ export interface ReviewedTest {
   lotNumber: string | null;
   certificateRevision: number | null;
   current: boolean;
-  readings: Array<{ distanceMm: number; label: string; hrc: number }>;
+  readings: Array<{ distanceMm: number; label: string; hrc: number; censored?: 'below' | 'above' | null }>;
   conformance: TestConformance | null;
+  /** Distance at 40 HRC, distance of 50 % martensite and DI estimated from this curve (curveFigures.ts). */
+  figures: CurveFigures | null;
 }
 
 export interface HeatSignal {
@@ -98,6 +101,7 @@ export async function heatReview(db: Db, heatId: number): Promise<HeatReview> {
     current: t.current,
     readings: t.readings,
     conformance: band && t.readings.length ? testConformance(toTest(t, heat.castDate), band) : null,
+    figures: t.readings.some((r) => !r.censored) ? curveFigures(toTest(t, heat.castDate).readings, (heat.chemistry as Chemistry).C) : null,
   }));
   const verdict = band && current.length ? heatConformance(current.map((t) => toTest(t, heat.castDate)), band) : null;
 

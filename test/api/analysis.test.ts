@@ -235,6 +235,9 @@ describe('heat review', () => {
     expect(r.status).toBe(200);
     expect(r.body.heat.heatNumber).toBe(shifted.heatNumber);
     expect(r.body.tests[0].conformance.points).toHaveLength(8);
+    // Whole-curve figures of each test: distance at 40 HRC, of 50 % martensite, and DI from the curve.
+    expect(r.body.tests[0].figures).toMatchObject({ atHardness: { hrc: 40 }, halfMartensite: { crossing: { status: 'crossed' } } });
+    expect(r.body.tests[0].figures.idealDiameter.mm).toBeGreaterThan(20);
     expect(['pass', 'fail']).toContain(r.body.verdict.verdict);
     expect(r.body.checks.map((c: { check: string }) => c.check)).toEqual(
       expect.arrayContaining(['curve_non_increasing', 'martensite_ceiling', 'chemistry_limits', 'prediction_residuals']),
