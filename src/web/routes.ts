@@ -15,12 +15,13 @@ import { chemistryPage } from './pages/chemistry.tsx';
 import { bandTrialPage } from './pages/bandTrial.tsx';
 import { signInPages } from './pages/signIn.tsx';
 import { receivingPage } from './pages/receiving.tsx';
+import { partToBandPage } from './pages/partToBand.tsx';
 import { monitoringPage } from './pages/monitoring.tsx';
 
 /** Page paths that take form posts; they refuse a post from another origin (hono/csrf checks Origin). */
 export const FORM_PATHS = ['/alerts/*', '/trends/*', '/monitoring', '/chemistry/*', '/band-trial/*', '/sign-in', '/sign-out'];
 /** Paths whose answers are compressed when the browser accepts it (pages are mostly repetitive markup). */
-export const PAGE_PATHS = ['/mills', '/heats', '/heats/*', '/grades/*', '/trends', '/capability', '/chemistry', '/band-trial', '/alerts', '/receiving', '/monitoring', '/assets/*'];
+export const PAGE_PATHS = ['/mills', '/heats', '/heats/*', '/grades/*', '/trends', '/capability', '/chemistry', '/band-trial', '/part-to-band', '/alerts', '/receiving', '/monitoring', '/assets/*'];
 
 export function webRoutes(app: Hono<any>, db: Db): void {
   for (const path of FORM_PATHS) app.use(path, csrf());
@@ -36,6 +37,7 @@ export function webRoutes(app: Hono<any>, db: Db): void {
   chemistryPage(app, db);
   bandTrialPage(app, db);
   receivingPage(app, db);
+  partToBandPage(app, db);
   monitoringPage(app, db);
   signInPages(app, db);
 }

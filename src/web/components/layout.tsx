@@ -3,7 +3,7 @@
 import type { Child } from 'hono/jsx';
 import { asset, CHART_SCRIPTS } from '../assets.ts';
 
-export type Section = 'mills' | 'heats' | 'trends' | 'capability' | 'chemistry' | 'trial' | 'alerts' | 'grade' | 'receiving';
+export type Section = 'mills' | 'heats' | 'trends' | 'capability' | 'chemistry' | 'trial' | 'part' | 'alerts' | 'grade' | 'receiving';
 
 export const NAV: ReadonlyArray<{ section: Section; label: string; href: string }> = [
   { section: 'mills', label: 'Mills', href: '/mills' },
@@ -12,6 +12,7 @@ export const NAV: ReadonlyArray<{ section: Section; label: string; href: string 
   { section: 'capability', label: 'Capability', href: '/capability' },
   { section: 'chemistry', label: 'Chemistry model', href: '/chemistry' },
   { section: 'trial', label: 'Band trial', href: '/band-trial' },
+  { section: 'part', label: 'Part to band', href: '/part-to-band' },
   { section: 'receiving', label: 'Receiving', href: '/receiving' },
   { section: 'alerts', label: 'Alerts', href: '/alerts' },
 ];
