@@ -15,6 +15,7 @@ import { register as registerDemoCommand } from './cliCommands/demo.ts';
 import { register as registerRefitCommand } from './cliCommands/refit.ts';
 import { register as registerReportCommand } from './cliCommands/report.ts';
 import { register as registerPartBandCommand } from './cliCommands/partBand.ts';
+import { register as registerCatalogCommands } from './cliCommands/catalog.ts';
 
 const program = new Command();
 program.name('endquench').description('Hardenability records of bar steel from mills: ingest, analysis, alerts.');
@@ -144,12 +145,13 @@ registerDemoCommand(program);
 registerRefitCommand(program);
 registerReportCommand(program);
 registerPartBandCommand(program);
+registerCatalogCommands(program);
 
 /** Mistakes a user can fix, said in one plain line (the stack only with LOG_LEVEL=debug). */
 function plainMessage(error: Error & { code?: string; path?: string }): string | null {
   if (error.code === 'ENOENT') return `no such file: ${error.path ?? error.message}`;
   if (error.code === 'EACCES') return `not allowed to read ${error.path ?? 'the file'}`;
-  if (['ConfigError', 'OpenBindRefused', 'AlertSettingsError', 'InvalidMillLayoutError', 'InvalidArgumentError', 'DemoRefusedError', 'HardenabilityInputError', 'AnalysisError'].includes(error.constructor.name)) return error.message;
+  if (['ConfigError', 'OpenBindRefused', 'AlertSettingsError', 'InvalidMillLayoutError', 'InvalidArgumentError', 'DemoRefusedError', 'CatalogInputError', 'HardenabilityInputError', 'AnalysisError'].includes(error.constructor.name)) return error.message;
   if (error instanceof SyntaxError) return `a JSON file could not be read: ${error.message}`;
   return null;
 }

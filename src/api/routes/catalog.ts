@@ -3,8 +3,7 @@ import { createRoute, z, type OpenAPIHono } from '@hono/zod-openapi';
 import type { Db } from '../../db/connection.ts';
 import { addBandVersion, listBands, listGrades, listMills, findGrade, upsertGrade, upsertMill } from '../../db/referenceData.ts';
 import { getHeat, listHeats } from '../../db/heats.ts';
-import { ELEMENTS } from '../../ingest/certificateSchema.ts';
-import { makeDistance } from '../../hardenability/distances.ts';
+import { bandInputSchema, gradeInputSchema, millInputSchema, storedBandPoints } from '../../ingest/catalogSchema.ts';
 import { ApiError, errorBodySchema } from '../errors.ts';
 import type { AppEnv } from '../context.ts';
 
@@ -12,47 +11,9 @@ const json = (schema: z.ZodType, description: string) => ({ description, content
 const anyObject = z.record(z.string(), z.unknown());
 const isoDate = z.string().regex(/^\d{4}-\d{2}-\d{2}$/, 'must be a date written YYYY-MM-DD');
 
-const millSchema = z
-  .object({ code: z.string().min(1).max(40), name: z.string().min(1), country: z.string().nullish(), notes: z.string().nullish() })
-  .openapi('Mill');
-
-const gradeSchema = z
-  .object({
-    code: z.string().min(1).max(40),
-    description: z.string().nullish(),
-    distanceSystem: z.enum(['mm', 'sixteenths']).default('mm'),
-    chemistryLimits: z
-      .array(
-        z
-          .object({ element: z.enum(ELEMENTS), min: z.number().min(0).max(100).nullable().default(null), max: z.number().min(0).max(100).nullable().default(null) })
-          .refine((l) => l.min !== null || l.max !== null, 'needs a min or a max')
-          .refine((l) => l.min === null || l.max === null || l.min <= l.max, 'min is above max'),
-      )
-      .default([]),
-  })
-  .openapi('Grade');
-
-const bandSchema = z
-  .object({
-    effectiveFrom: isoDate,
-    status: z.enum(['draft', 'active', 'retired']).default('active'),
-    kind: z.enum(['standard', 'restricted']).default('standard'),
-    /** astm_e29 (default): readings rounded to the limits' places by ASTM E29 before comparing; as_reported: compared as written. */
-    rounding: z.enum(['astm_e29', 'as_reported']).default('astm_e29'),
-    reason: z.string().optional(),
-    /** Distances in the unit named here; stored in exact mm with the original label. */
-    distanceSystem: z.enum(['mm', 'sixteenths']),
-    points: z
-      .array(
-        z
-          .object({ at: z.number().positive(), min: z.number().min(0).max(70).nullable().default(null), max: z.number().min(0).max(70).nullable().default(null) })
-          .refine((p) => p.min !== null || p.max !== null, 'needs a min or a max HRC')
-          .refine((p) => p.min === null || p.max === null || p.min <= p.max, 'min HRC is above max HRC'),
-      )
-      .min(1)
-      .refine((pts) => new Set(pts.map((p) => p.at)).size === pts.length, 'a distance appears twice'),
-  })
-  .openapi('BandVersion');
+const millSchema = millInputSchema.openapi('Mill');
+const gradeSchema = gradeInputSchema.openapi('Grade');
+const bandSchema = bandInputSchema.openapi('BandVersion');
 
 export function catalogRoutes(app: OpenAPIHono<AppEnv>, db: Db) {
   app.openapi(
@@ -131,10 +92,7 @@ export function catalogRoutes(app: OpenAPIHono<AppEnv>, db: Db) {
         rounding: body.rounding,
         reason: body.reason,
         author: c.get('auth')?.name,
-        points: body.points.map((p) => {
-          const at = makeDistance(p.at, body.distanceSystem);
-          return { distanceMm: at.mm, label: at.label, minHrc: p.min, maxHrc: p.max };
-        }),
+        points: storedBandPoints(body),
       });
       return c.json(band, 201);
     },
