@@ -61,7 +61,7 @@ export interface HeatCurveMonitoring {
 }
 
 export interface HeatReview {
-  heat: Pick<HeatDetail, 'id' | 'mill' | 'grade' | 'heatNumber' | 'castDate' | 'revision' | 'certificateNumber' | 'grainSize' | 'chemistry'>;
+  heat: Pick<HeatDetail, 'id' | 'mill' | 'grade' | 'heatNumber' | 'castDate' | 'revision' | 'certificateNumber' | 'grainSize' | 'grainSizeStated' | 'chemistry'>;
   band: BandSummary | null;
   verdict: { verdict: string; explanation: string; disagreement: boolean } | null;
   tests: ReviewedTest[];
@@ -200,6 +200,7 @@ export async function heatReview(db: Db, heatId: number): Promise<HeatReview> {
       revision: heat.revision,
       certificateNumber: heat.certificateNumber,
       grainSize: heat.grainSize,
+      grainSizeStated: heat.grainSizeStated,
       chemistry: heat.chemistry,
     },
     band: band ? bandSummary(band) : null,

@@ -251,13 +251,13 @@ async function insertCertificates(
   const col = <T>(f: (c: PreparedCertificate) => T) => p(items.map(({ c }) => f(c)));
   const rows = rowsOf<{ id: number; heat_id: number }>(
     await ex.execute(sql`
-      insert into certificates (heat_id, revision, certificate_number, certificate_date, grain_size,
+      insert into certificates (heat_id, revision, certificate_number, certificate_date, grain_size, grain_size_stated,
         c, mn, si, p, s, cr, ni, mo, cu, v, al, b, ti, nb, n, other_elements, document, content_hash, import_id)
-      select heat_id, revision, certificate_number, certificate_date, grain_size,
+      select heat_id, revision, certificate_number, certificate_date, grain_size, grain_size_stated,
         c, mn, si, p, s, cr, ni, mo, cu, v, al, b, ti, nb, n, other_elements, document, content_hash, ${importId}::int
       from unnest(
         ${p(items.map(({ c }) => heatIds.get(c.key)))}::int[], ${p(items.map((i) => i.revision))}::int[],
-        ${col((c) => c.certificateNumber)}::text[], ${col((c) => c.certificateDate)}::date[], ${col((c) => c.grainSize)}::float8[],
+        ${col((c) => c.certificateNumber)}::text[], ${col((c) => c.certificateDate)}::date[], ${col((c) => c.grainSize)}::float8[], ${col((c) => c.grainSizeStated)}::text[],
         ${col((c) => c.chemistry.c)}::float8[], ${col((c) => c.chemistry.mn)}::float8[], ${col((c) => c.chemistry.si)}::float8[],
         ${col((c) => c.chemistry.p)}::float8[], ${col((c) => c.chemistry.s)}::float8[], ${col((c) => c.chemistry.cr)}::float8[],
         ${col((c) => c.chemistry.ni)}::float8[], ${col((c) => c.chemistry.mo)}::float8[], ${col((c) => c.chemistry.cu)}::float8[],
@@ -265,7 +265,7 @@ async function insertCertificates(
         ${col((c) => c.chemistry.ti)}::float8[], ${col((c) => c.chemistry.nb)}::float8[], ${col((c) => c.chemistry.n)}::float8[],
         ${col((c) => JSON.stringify(c.otherElements))}::jsonb[], ${col((c) => JSON.stringify(c.document))}::jsonb[],
         ${col((c) => c.contentHash)}::text[]
-      ) as k(heat_id, revision, certificate_number, certificate_date, grain_size,
+      ) as k(heat_id, revision, certificate_number, certificate_date, grain_size, grain_size_stated,
         c, mn, si, p, s, cr, ni, mo, cu, v, al, b, ti, nb, n, other_elements, document, content_hash)
       returning id, heat_id`),
   );

@@ -102,6 +102,8 @@ export interface TestView {
 }
 
 export interface HeatDetail extends HeatSummary {
+  /** The current certificate's grain size as written when it was not one number ("5-8", "≥5", "fine"). */
+  grainSizeStated: string | null;
   revisions: Array<{
     revision: number;
     certificateNumber: string | null;
@@ -124,7 +126,7 @@ export async function getHeat(db: Db, id: number): Promise<HeatDetail | null> {
   if (!head) return null;
   const revisions = rowsOf<Record<string, unknown>>(
     await db.execute(sql`
-      select id, revision, certificate_number, certificate_date::text as certificate_date, grain_size, import_id, created_at,
+      select id, revision, certificate_number, certificate_date::text as certificate_date, grain_size, grain_size_stated, import_id, created_at,
         other_elements, ${sql.raw(chemistryColumns.join(', '))}
       from certificates where heat_id = ${id} order by revision desc`),
   );
@@ -156,6 +158,7 @@ export async function getHeat(db: Db, id: number): Promise<HeatDetail | null> {
     revision: currentRevision,
     certificateNumber: (current.certificate_number as string | null) ?? null,
     grainSize: (current.grain_size as number | null) ?? null,
+    grainSizeStated: (current.grain_size_stated as string | null) ?? null,
     chemistry: chemistryOf(current),
     revisions: revisions.map((r) => ({
       revision: Number(r.revision),

@@ -177,6 +177,8 @@ export const certificates = pgTable(
     certificateNumber: text('certificate_number'),
     certificateDate: date('certificate_date', { mode: 'string' }),
     grainSize: doublePrecision('grain_size'),
+    /** The grain size as written when it was not one number ("5-8", "≥5", "fine"); grain_size then holds what calculations use. */
+    grainSizeStated: text('grain_size_stated'),
     c: pct('c').notNull(),
     mn: pct('mn'),
     si: pct('si'),

@@ -2,6 +2,7 @@
 // Validation reports each problem with its path and a plain reason; limits are what no real
 // certificate can hold (common practice: carbon above 2 % is cast iron, not steel; end-quench
 // hardness above 70 HRC is beyond any steel's martensite).
+import { parseGrainSize } from '../hardenability/grainSize.ts';
 import { z } from 'zod';
 import { SPECIMEN_LENGTH_MM, sixteenthsToMm } from '../hardenability/distances.ts';
 
@@ -125,13 +126,21 @@ export function certificateSchema(today?: () => string) {
       castDate: pastDate(today),
       certificateNumber: identifier().min(1).optional(),
       certificateDate: pastDate(today).optional(),
-      grainSize: z.number().min(-1).max(15).optional(),
+      /** An ASTM E112 number, or as stated: a range "5-8", a bound "≥5", or "fine" (src/hardenability/grainSize.ts). */
+      grainSize: z.union([z.number().min(-1).max(15), z.string().max(40)]).optional(),
       chemistry: chemistrySchema,
       lots: z.array(lotSchema(today)).default([]),
       tests: z.array(testSchema(today)).default([]),
     })
     .strict()
     .superRefine((c, ctx) => {
+      if (typeof c.grainSize === 'string') {
+        try {
+          parseGrainSize(c.grainSize);
+        } catch (error) {
+          ctx.addIssue({ code: 'custom', path: ['grainSize'], message: (error as Error).message });
+        }
+      }
       if (c.certificateDate && c.certificateDate < c.castDate) {
         ctx.addIssue({ code: 'custom', path: ['certificateDate'], message: 'is before the cast date' });
       }

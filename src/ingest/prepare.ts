@@ -1,5 +1,6 @@
 // Turns validated canonical records into rows ready to store: distances in exact millimetres, canonical
 // JSON and content hashes (what makes a repeated certificate or test recognisable), chemistry by column.
+import { parseGrainSize } from '../hardenability/grainSize.ts';
 import { createHash } from 'node:crypto';
 import { makeDistance } from '../hardenability/distances.ts';
 import {
@@ -48,7 +49,10 @@ export interface PreparedCertificate {
   castDate: string;
   certificateNumber: string | null;
   certificateDate: string | null;
+  /** What calculations use (a stated range: its midpoint; a bound only: null). */
   grainSize: number | null;
+  /** As written when it was not one number. */
+  grainSizeStated: string | null;
   chemistry: ChemistryColumns;
   otherElements: Record<string, number>;
   /** The certificate's own content (without additive lots and re-tests), canonical. */
@@ -73,7 +77,7 @@ export interface CertificateDocument {
   castDate: string;
   certificateNumber: string | null;
   certificateDate: string | null;
-  grainSize: number | null;
+  grainSize: number | string | null;
   chemistry: Record<string, number>;
   curves: Array<{ distanceSystem: DistanceSystem; basis: string; testDate: string | null; lotNumber: string | null; readings: Array<[number, number] | [number, number, string]> }>;
 }
@@ -139,12 +143,14 @@ export function prepareCertificate(c: CertificateInput): PreparedCertificate {
   const listedChemistry: Record<string, number> = {};
   for (const e of ELEMENTS) if (c.chemistry[e] !== undefined) listedChemistry[e] = c.chemistry[e]!;
   for (const [e, v] of Object.entries(c.chemistry.other ?? {})) listedChemistry[e] = v;
+  const grain = c.grainSize === undefined ? { value: null, stated: null } : parseGrainSize(c.grainSize);
   const millTests = c.tests.filter((t) => t.source === 'mill_certificate');
   const document: CertificateDocument = {
     grade: c.grade,
     castDate: c.castDate,
     certificateNumber: c.certificateNumber ?? null,
     certificateDate: c.certificateDate ?? null,
+    // As written: a number as before (content hashes of earlier certificates unchanged), a stated range or bound as its text.
     grainSize: c.grainSize ?? null,
     chemistry: listedChemistry,
     curves: millTests
@@ -168,7 +174,8 @@ export function prepareCertificate(c: CertificateInput): PreparedCertificate {
     castDate: c.castDate,
     certificateNumber: c.certificateNumber ?? null,
     certificateDate: c.certificateDate ?? null,
-    grainSize: c.grainSize ?? null,
+    grainSize: grain.value,
+    grainSizeStated: grain.stated,
     chemistry,
     otherElements: c.chemistry.other ?? {},
     document,

@@ -2,6 +2,7 @@
 // mill's own layout) -> canonical certificates and re-test records, each problem addressed by file
 // row and the file's own column header. Pure: bytes in, records out. The layout is described in
 // docs/import-format.md.
+import { parseGrainSize } from '../hardenability/grainSize.ts';
 import type { z } from 'zod';
 import {
   certificateSchema,
@@ -295,8 +296,19 @@ function readField(field: FieldName, cell: RawCell, setup: Setup): CellResult<Va
     }
     case 'date':
       return parseDateCell(cell, setup.datePattern, setup.allowSerialDates);
-    case 'number':
-      return parseNumberCell(cell, setup.numberFormat);
+    case 'number': {
+      const n = parseNumberCell(cell, setup.numberFormat);
+      // A grain size may be stated as a range, a bound or a word ("5-8", "≥5", "fine"): kept as written.
+      if (!n.ok && field === 'grain_size' && typeof cell === 'string') {
+        try {
+          parseGrainSize(cell);
+          return { ok: true, value: cell.trim() };
+        } catch (error) {
+          return { ok: false, reason: (error as Error).message };
+        }
+      }
+      return n;
+    }
     case 'chemistry':
       return parseChemistryCell(cell, setup.numberFormat, setup.belowDetection);
   }

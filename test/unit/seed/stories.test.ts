@@ -132,7 +132,7 @@ describe('3. too-smooth reporting', () => {
       const residuals = rows.flatMap((c) => {
         const grade = gradeOf(c.grade);
         const chem = Object.fromEntries(REPORTED_ELEMENTS.map((e) => [e, c.chemistry[e]!])) as Record<ReportedElement, number>;
-        const predicted = trueCurve(curveModel(grade), chem, c.grainSize!);
+        const predicted = trueCurve(curveModel(grade), chem, c.grainSize as number);
         // Skip the 20 HRC floor, where readings are clipped.
         return hrcOf(c).map((v, i) => v - predicted[i]).filter((_, i) => predicted[i] > 22);
       });

@@ -1,0 +1,1 @@
+ALTER TABLE "certificates" ADD COLUMN "grain_size_stated" text;
