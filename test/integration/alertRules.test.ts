@@ -158,6 +158,10 @@ describe(`alert rules in the ingest transaction (${process.env.TEST_DATABASE_URL
     for (const a of [...ewma, ...cusum]) {
       for (const h of a.evidence.heats as string[]) expect(Number(h.slice(4))).toBeGreaterThan(100);
       expect((a.evidence.distancesMm as number[]).length).toBeGreaterThanOrEqual(2);
+      // Heats are listed in time order (the fixture casts heat n+1 two days after heat n), so the title names the first that fired.
+      const numbers = (a.evidence.heats as string[]).map((h) => Number(h.slice(4)));
+      expect(numbers).toEqual([...numbers].sort((x, y) => x - y));
+      expect(a.title).toContain(`heat ${(a.evidence.heats as string[])[0]}`);
     }
   });
 

@@ -157,7 +157,10 @@ function alertOf(group: SeriesGroup, source: SeriesSource, fs: Firing[], perDist
   const first = lead.chart.points[lead.indices[0]];
   const byDistance = [...fs].sort((a, b) => (a.chart.distanceMm as number) - (b.chart.distanceMm as number));
   const labels = byDistance.map((f) => f.chart.label as string);
-  const heats = [...new Set(byDistance.flatMap((f) => f.indices.map((i) => f.chart.points[i].heatNumber)))];
+  // Heats in time order (cast date, then heat number, as the series loader orders them), so the title names the first that fired.
+  const firedPoints = byDistance.flatMap((f) => f.indices.map((i) => f.chart.points[i]));
+  firedPoints.sort((a, b) => a.castDate.localeCompare(b.castDate) || (a.heatNumber < b.heatNumber ? -1 : a.heatNumber > b.heatNumber ? 1 : 0));
+  const heats = [...new Set(firedPoints.map((p) => p.heatNumber))];
   const more = heats.length > 3 ? ` and ${heats.length - 3} more` : '';
   const d = lead.chart.distanceMm as number;
   const where = labels.length > 4 ? `${labels.length} distances (${labels.slice(0, 4).join(', ')} ...)` : labels.join(', ');
