@@ -11,6 +11,7 @@
 // ENDQUENCH_ALERT_SETTINGS (JSON, same shape as AlertSettingsOverride) overrides the defaults for the
 // deployment; a grade's stored monitoring configuration (src/db/monitoringConfig.ts) overrides the
 // monitoring parts (GRADE_CONFIGURABLE) for that grade.
+import { QUENCHED_END_FAIL_ABOVE_IH_HRC } from '../../hardenability/martensite.ts';
 import type { NelsonRule } from '../../stats/nelsonRules.ts';
 import type { SeriesSource } from '../../db/series.ts';
 import type { CurveMonitorSettings } from '../../analysis/curveMonitor.ts';
@@ -105,8 +106,9 @@ export const DEFAULT_ALERT_SETTINGS: AlertRuleSettings = Object.freeze({
     // Curves rounded to whole (or even) HRC that follow chemistry closely repeat by chance of rounding;
     // ten element values all equal by chance are far rarer.
     copies: { enabled: true, windowDays: 365, needs: 'chemistry' },
-    // ASTM A255 initial hardness plus 2 HRC (the tolerance of src/hardenability/checks/martensiteCeiling.ts).
-    martensite: { enabled: true, failAboveHrc: 5 },
+    // ASTM A255 initial hardness plus 7 HRC: the same fail tolerance as the heat sheet's check, read off
+    // published bands at their carbon limits (src/hardenability/martensite.ts).
+    martensite: { enabled: true, failAboveHrc: QUENCHED_END_FAIL_ABOVE_IH_HRC },
     // Standardised residual against the curve predicted from chemistry beyond 4 at two or more distances.
     prediction: { enabled: true, failZ: 4, minDistances: 2 },
   },
