@@ -13,6 +13,8 @@ export interface HeatFilter {
   offset?: number;
   /** Restrict to one mill's heats (a mill-scoped caller). */
   millScope?: string;
+  /** oldest (default): cast date, then heat number; newest: the reverse, so the first page holds the latest heats. */
+  order?: 'oldest' | 'newest';
 }
 
 export type ChemistryView = Partial<Record<(typeof ELEMENTS)[number], number>> & { other?: Record<string, number> };
@@ -66,7 +68,7 @@ export async function listHeats(db: Db, filter: HeatFilter): Promise<{ total: nu
       join grades g on g.id = h.grade_id
       join lateral (select * from certificates c where c.heat_id = h.id order by revision desc limit 1) c on true
       where ${where}
-      order by h.cast_date, h.heat_number
+      order by ${filter.order === 'newest' ? sql`h.cast_date desc, h.heat_number desc` : sql`h.cast_date, h.heat_number`}
       limit ${filter.limit ?? 500} offset ${filter.offset ?? 0}`),
   );
   return {

@@ -17,11 +17,12 @@ import { signInPages } from './pages/signIn.tsx';
 import { receivingPage } from './pages/receiving.tsx';
 import { partToBandPage } from './pages/partToBand.tsx';
 import { monitoringPage } from './pages/monitoring.tsx';
+import { cataloguePage } from './pages/catalogue.tsx';
 
 /** Page paths that take form posts; they refuse a post from another origin (hono/csrf checks Origin). */
-export const FORM_PATHS = ['/alerts/*', '/trends/*', '/monitoring', '/chemistry/*', '/band-trial/*', '/sign-in', '/sign-out'];
+export const FORM_PATHS = ['/alerts/*', '/trends/*', '/monitoring', '/chemistry/*', '/band-trial/*', '/sign-in', '/sign-out', '/catalogue/*'];
 /** Paths whose answers are compressed when the browser accepts it (pages are mostly repetitive markup). */
-export const PAGE_PATHS = ['/mills', '/heats', '/heats/*', '/grades/*', '/trends', '/capability', '/chemistry', '/band-trial', '/part-to-band', '/alerts', '/receiving', '/monitoring', '/assets/*'];
+export const PAGE_PATHS = ['/mills', '/heats', '/heats/*', '/grades/*', '/trends', '/capability', '/chemistry', '/band-trial', '/part-to-band', '/alerts', '/receiving', '/monitoring', '/catalogue', '/assets/*'];
 
 export function webRoutes(app: Hono<any>, db: Db): void {
   for (const path of FORM_PATHS) app.use(path, csrf());
@@ -39,5 +40,6 @@ export function webRoutes(app: Hono<any>, db: Db): void {
   receivingPage(app, db);
   partToBandPage(app, db);
   monitoringPage(app, db);
+  cataloguePage(app, db);
   signInPages(app, db);
 }

@@ -3,7 +3,7 @@
 import type { Child } from 'hono/jsx';
 import { asset, CHART_SCRIPTS } from '../assets.ts';
 
-export type Section = 'mills' | 'heats' | 'trends' | 'capability' | 'chemistry' | 'trial' | 'part' | 'alerts' | 'grade' | 'receiving';
+export type Section = 'mills' | 'heats' | 'trends' | 'capability' | 'chemistry' | 'trial' | 'part' | 'alerts' | 'grade' | 'receiving' | 'catalogue';
 
 export const NAV: ReadonlyArray<{ section: Section; label: string; href: string }> = [
   { section: 'mills', label: 'Mills', href: '/mills' },
@@ -15,6 +15,7 @@ export const NAV: ReadonlyArray<{ section: Section; label: string; href: string 
   { section: 'part', label: 'Part to band', href: '/part-to-band' },
   { section: 'receiving', label: 'Receiving', href: '/receiving' },
   { section: 'alerts', label: 'Alerts', href: '/alerts' },
+  { section: 'catalogue', label: 'Catalogue', href: '/catalogue' },
 ];
 
 export function Layout(props: { title: string; section: Section; charts: boolean; children?: Child }) {

@@ -1,6 +1,7 @@
 // Alerts: the list with filters, and acknowledge / resolve with a note. The forms post to this page's own
 // routes (no script needed), which call the same functions as the JSON API, then return to the list.
 import type { Context, Hono } from 'hono';
+import { alertRuleName } from '../../alerts/ruleNames.ts';
 import type { Db } from '../../db/connection.ts';
 import { ALERT_STATUSES, AlertNotFoundError, AlertStateError, acknowledgeAlert, listAlerts, resolveAlert, type AlertStatus, type AlertView } from '../../db/alerts.ts';
 import { listGrades, listMills } from '../../db/referenceData.ts';
@@ -60,6 +61,7 @@ export function alertsPage(app: Hono<any>, db: Db) {
     const back = query(filter);
     const rows = found.alerts.map((a) => ({
       ...a,
+      ruleName: alertRuleName(a.rule),
       heatNumber: a.heat?.heatNumber ?? null,
       lotNumber: a.lot?.lotNumber ?? null,
       distance: a.distanceMm === null ? null : mmLabel(a.distanceMm),
@@ -72,7 +74,7 @@ export function alertsPage(app: Hono<any>, db: Db) {
     const counts = new Map<string, { rule: string; severity: string; status: string; count: number }>();
     for (const a of found.alerts) {
       const key = `${a.rule}|${a.severity}|${a.status}`;
-      const held = counts.get(key) ?? { rule: a.rule, severity: a.severity, status: a.status, count: 0 };
+      const held = counts.get(key) ?? { rule: alertRuleName(a.rule), severity: a.severity, status: a.status, count: 0 };
       held.count++;
       counts.set(key, held);
     }
@@ -93,7 +95,7 @@ export function alertsPage(app: Hono<any>, db: Db) {
             <Select name="status" label="Status" value={filter.status} any="Any status" options={ALERT_STATUSES.map((s) => ({ value: s, label: s }))} />
             <Select name="mill" label="Mill" value={filter.mill} any="All mills" options={mills.map((m) => ({ value: m.code, label: m.code }))} />
             <Select name="grade" label="Grade" value={filter.grade} any="All grades" options={grades.map((g) => ({ value: g.code, label: g.code }))} />
-            <Select name="rule" label="Rule" value={filter.rule} any="All rules" options={rules.map((r) => ({ value: r, label: r.replace(/_/g, ' ') }))} />
+            <Select name="rule" label="Rule" value={filter.rule} any="All rules" options={rules.map((r) => ({ value: r, label: alertRuleName(r) }))} />
             <button type="submit">Show</button>
           </form>
           <Caution>An alert says a lot deserves a look; it does not reject or release it. Acceptance follows the purchase specification and the judgement of qualified personnel.</Caution>
@@ -153,7 +155,8 @@ export function alertsPage(app: Hono<any>, db: Db) {
                   </>
                 ),
               },
-              { key: 'rule', label: 'Rule' },
+              { key: 'ruleName', label: 'Rule', wrap: true },
+              { key: 'rule', label: 'Rule id', csvOnly: true },
               { key: 'mill', label: 'Mill' },
               { key: 'grade', label: 'Grade' },
               { key: 'heatNumber', label: 'Heat', cell: (r: Row) => (r.heat ? <a href={`/heats/${r.heat.id}`}>{r.heat.heatNumber}</a> : '–') },

@@ -24,11 +24,8 @@ export function heatPages(app: Hono<any>, db: Db) {
     }
     const mill = optionalText(c.req.query('mill'));
     const grade = optionalText(c.req.query('grade'));
-    const [mills, grades, found] = await Promise.all([listMills(db), listGrades(db), listHeats(db, { mill, grade, ...window, limit: PAGE_SIZE, offset: Math.floor(offset) })]);
-    const rows = found.heats
-      .slice()
-      .reverse()
-      .map((h) => ({ id: h.id, heatNumber: h.heatNumber, mill: h.mill, grade: h.grade, castDate: h.castDate, certificate: h.certificateNumber, revision: h.revision, grainSize: h.grainSize, C: h.chemistry.C ?? null }));
+    const [mills, grades, found] = await Promise.all([listMills(db), listGrades(db), listHeats(db, { mill, grade, ...window, limit: PAGE_SIZE, offset: Math.floor(offset), order: 'newest' })]);
+    const rows = found.heats.map((h) => ({ id: h.id, heatNumber: h.heatNumber, mill: h.mill, grade: h.grade, castDate: h.castDate, certificate: h.certificateNumber, revision: h.revision, grainSize: h.grainSize, C: h.chemistry.C ?? null }));
     type Row = (typeof rows)[number];
     const base = { mill, grade, ...window };
     return {
@@ -45,9 +42,9 @@ export function heatPages(app: Hono<any>, db: Db) {
             <button type="submit">Show</button>
           </form>
           <p>
-            {found.total} heat(s); showing {offset + 1}–{Math.min(offset + PAGE_SIZE, found.total)} in cast order, newest of them first.{' '}
-            {offset > 0 ? <a href={`/heats${query({ ...base, offset: Math.max(0, offset - PAGE_SIZE) })}`}>Earlier page</a> : null}{' '}
-            {offset + PAGE_SIZE < found.total ? <a href={`/heats${query({ ...base, offset: offset + PAGE_SIZE })}`}>Next page</a> : null}
+            {found.total} heat(s); showing {offset + 1}–{Math.min(offset + PAGE_SIZE, found.total)} newest first (by cast date).{' '}
+            {offset > 0 ? <a href={`/heats${query({ ...base, offset: Math.max(0, offset - PAGE_SIZE) })}`}>Newer heats</a> : null}{' '}
+            {offset + PAGE_SIZE < found.total ? <a href={`/heats${query({ ...base, offset: offset + PAGE_SIZE })}`}>Older heats</a> : null}
           </p>
           {kit.table('heats', 'Heats', {
             columns: [
