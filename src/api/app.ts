@@ -16,6 +16,7 @@ import { alertRoutes } from './routes/alerts.ts';
 import { monitoringRoutes } from './routes/monitoring.ts';
 import { webhookRoutes } from './routes/webhooks.ts';
 import { partRequirementRoutes } from './routes/partRequirement.ts';
+import { curveFigureRoutes } from './routes/curveFigures.ts';
 import { receivingRoutes } from './routes/receiving.ts';
 import { accessControl, type AfterWriteHook } from '../auth/middleware.ts';
 import { annotateRoles } from '../auth/openapiRoles.ts';
@@ -63,6 +64,7 @@ export function createApp({ database, logger, version = '0.1.0', access = {} }: 
   webhookRoutes(app, database.db);
   partRequirementRoutes(app, database.db);
   receivingRoutes(app, database.db);
+  curveFigureRoutes(app, database.db);
   webRoutes(app, database.db);
 
   // Every operation's role comes from the access policy (x-required-role, x-roles, security).

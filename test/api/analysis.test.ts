@@ -262,6 +262,25 @@ describe('heat review', () => {
   });
 });
 
+describe('whole-curve figures over a series', () => {
+  test('J at 35 HRC of every heat, charted, with capability against the limits the band implies', async () => {
+    const r = await t.request('GET', '/api/v1/curve-figures?grade=8620H&mill=ANVIL&hrc=35');
+    expect(r.status).toBe(200);
+    expect(r.body).toMatchObject({ figure: 'j_at_hardness', hrc: 35, limits: { usl: 9 } });
+    expect(r.body.limits.lsl).toBeLessThan(r.body.limits.usl);
+    const heats = (await t.request('GET', '/api/v1/heats?mill=ANVIL&grade=8620H&limit=500')).body.total;
+    expect(r.body.points.length + r.body.without).toBe(heats);
+    expect(r.body.chart.ucl).toBeGreaterThan(r.body.chart.center);
+    expect(r.body.capability.n).toBe(r.body.points.length);
+    expect(r.body.caution).toMatch(/do not replace/);
+    const di = await t.request('GET', '/api/v1/curve-figures?grade=8620H&mill=ANVIL&figure=ideal_diameter');
+    expect(di.status).toBe(200);
+    expect(di.body.limits).toBeNull();
+    expect(di.body.capability).toBeNull();
+    expect((await t.request('GET', '/api/v1/curve-figures?grade=8620H&figure=weight')).status).toBe(400);
+  });
+});
+
 describe('band trials', () => {
   test('per mill: failing heats listed, share, Ppk and expected PPM per distance, current band, suggestion', async () => {
     const r = await t.request('POST', '/api/v1/band-trials', {
