@@ -166,13 +166,16 @@ describe.skipIf(!onServer)('database connection lost (PostgreSQL server)', () =>
     console.info(`[faults, postgres] 12 cuts under writes: ${statuses.filter((s) => s === 201).length} stored (201), ${statuses.filter((s) => s === 503).length} answered 503`);
   }, 120_000);
 
-  test('a transaction that meets a dead connection at BEGIN does not leak its pool client', async () => {
+  test('a transaction that meets a dead connection at BEGIN does not leak its pool client', async (ctx) => {
     const url = new URL(database.url!);
     url.searchParams.set('application_name', 'endquench_fault_pool');
     const small = await openDatabase({ url: url.toString(), poolMax: 2, connectTimeoutMs: 2000 });
     try {
+      // The race (a client handed out in the moment between the server ending its backend and the
+      // client noticing) is hit in roughly one try in ten: keep trying until it was hit a few times.
       let failed = 0;
-      for (let i = 0; i < 12; i++) {
+      let tries = 0;
+      for (; tries < 400 && failed < 4; tries++) {
         await small.db.execute(sql`select 1`); // an idle client in the pool
         await admin(`select pg_terminate_backend(pid) from pg_stat_activity where datname = $1 and application_name = 'endquench_fault_pool'`, [dbName]);
         try {
@@ -182,10 +185,15 @@ describe.skipIf(!onServer)('database connection lost (PostgreSQL server)', () =>
           failed++;
         }
       }
-      // Twelve failures on a pool of two: had any leaked, this would wait out the 2 s connect timeout and fail.
+      if (failed === 0) {
+        // Timing decides whether the race is hit at all (on a busy machine it is, about one try in ten).
+        console.info(`[faults, postgres] no transaction met a dead connection in ${tries} tries: the leak check did not run`);
+        ctx.skip();
+      }
+      // More failures than the pool holds: had any leaked, this would wait out the 2 s connect timeout and fail.
       const [row] = rowsOf<{ ok: number }>(await small.db.transaction(async (tx) => tx.execute(sql`select 1 as ok`)));
       expect(row.ok).toBe(1);
-      console.info(`[faults, postgres] pool of 2: ${failed} of 12 transactions met a dead connection; the pool still serves`);
+      console.info(`[faults, postgres] pool of 2: ${failed} of ${tries} transactions met a dead connection; the pool still serves`);
     } finally {
       await small.close();
     }
