@@ -380,21 +380,23 @@ function certificateOutcome(item: CertificatePlanItem, rows?: number[]): ItemOut
 function describe(importId: number, parsed: ParsedDocument, plan: StorePlan): ImportReport {
   const report = emptyReport(importId, 'rejected');
   report.problems.push(...parsed.fileProblems);
-  const planned = [...plan.certificates];
+  // Plan items come in the order of the valid parsed items: walked with an index, never copied or
+  // shifted (Array.shift may move the whole array each time on a large file).
+  let nextCertificate = 0;
   for (const c of parsed.certificates) {
     if (!c.value) {
       report.items.push({ key: c.key, kind: 'certificate', rows: c.rows, status: 'invalid', problems: c.problems });
       continue;
     }
-    report.items.push(certificateOutcome(planned.shift()!, c.rows));
+    report.items.push(certificateOutcome(plan.certificates[nextCertificate++], c.rows));
   }
-  const plannedTests = [...plan.tests];
+  let nextTest = 0;
   for (const t of parsed.tests) {
     if (!t.value) {
       report.items.push({ key: t.key, kind: 'test', rows: t.rows, status: 'invalid', problems: t.problems });
       continue;
     }
-    const item = plannedTests.shift()!;
+    const item = plan.tests[nextTest++];
     report.items.push(
       item.reject
         ? { key: t.key, kind: 'test', rows: t.rows, status: item.forbidden ? 'forbidden' : 'rejected', problems: [{ row: t.rows?.[0], path: '', message: item.reject }] }
