@@ -100,8 +100,23 @@ async function loadDemoWhenEmpty(database: Database, logger: Logger): Promise<vo
     if (!(await isDatabaseEmpty(database.db))) return;
     logger.info('the embedded database is empty: loading the invented demo plant (set ENDQUENCH_DEMO=off to start empty)');
     const summary = await loadDemo(database.db);
-    logger.info({ summary }, 'demo plant loaded');
+    const counts = demoCounts(summary);
+    logger.info(counts, `demo plant loaded in ${counts.seconds} s: ${counts.mills} mills, ${counts.grades} grades, ${counts.heats} heats, ${counts.retests} receiving re-tests, ${counts.readings} readings, ${counts.stories} planted stories (seed/README.md)`);
   } catch (error) {
     logger.error({ err: error }, 'loading the demo plant failed; the service runs on without it');
   }
+}
+
+/** The start-up line of a demo load: counts, never lists of heats (`endquench demo --json` gives the whole summary). */
+export function demoCounts(summary: Awaited<ReturnType<typeof loadDemo>>) {
+  return {
+    mills: summary.mills,
+    grades: summary.grades,
+    heats: summary.heatsCreated,
+    retests: summary.retests,
+    readings: summary.readingsAdded,
+    models: summary.models,
+    stories: Object.keys(summary.stories).length,
+    seconds: Number((summary.elapsedMs / 1000).toFixed(1)),
+  };
 }
