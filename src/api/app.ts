@@ -1,5 +1,6 @@
 // The HTTP application: JSON API under /api/v1, /healthz, /openapi.json. Every error leaves as JSON
 // with a stable code; unexpected ones are logged with their stack and answered without it.
+import { cautionMiddleware } from './caution.ts';
 import { OpenAPIHono } from '@hono/zod-openapi';
 import { bodyLimit } from 'hono/body-limit';
 import { HTTPException } from 'hono/http-exception';
@@ -45,6 +46,8 @@ export function createApp({ database, logger, version = '0.1.0', access = {} }: 
   // Who is calling and whether the role may (src/auth/policy.ts); public routes pass untouched.
   app.use('*', accessControl({ db: database.db, ...access }));
   app.use('/api/*', bodyLimit({ maxSize: MAX_UPLOAD_BYTES, onError: (c) => errorResponse(c, 413, 'too_large', `The document is larger than ${MAX_UPLOAD_BYTES / 2 ** 20} MiB.`) }));
+  // Verdicts and predictions carry the usual caution in their JSON answers (src/api/caution.ts).
+  app.use('/api/*', cautionMiddleware());
 
   app.get('/healthz', async (c) => {
     try {

@@ -2,6 +2,7 @@
 // index alerts_one_open_per_cause decides, so two concurrent raisers cannot both win), and in the same
 // transaction one outbox row per active webhook subscription that wants the event. Acknowledge and
 // resolve record who, when and why, and emit their own events the same way.
+import { DECISION_CAUTION } from '../caution.ts';
 import { sql, type SQL } from 'drizzle-orm';
 import { rowsOf, type Db, type Executor } from './connection.ts';
 
@@ -95,7 +96,8 @@ export async function raiseAlert(ex: Executor, input: RaiseAlertInput): Promise<
  */
 export async function enqueueAlertEvent(ex: Executor, event: AlertEvent, alert: AlertView, occurredAt: Date): Promise<number> {
   const key = `${event}:${alert.id}`;
-  const payload = { event, id: key, occurredAt: occurredAt.toISOString(), alert };
+  // The caution travels with the event: a receiver may act on it automatically.
+  const payload = { event, id: key, occurredAt: occurredAt.toISOString(), alert, caution: DECISION_CAUTION };
   const rows = rowsOf<{ id: number }>(
     await ex.execute(sql`
       insert into outbox (subscription_id, event_type, idempotency_key, payload)
