@@ -40,8 +40,10 @@ async function cutServiceConnections(): Promise<number> {
 }
 
 async function counts() {
-  const [row] = rowsOf<{ heats: number; readings: number; accepted: number; unfinished: number }>(
+  const [row] = rowsOf<{ heats: number; readings: number; accepted: number; unfinished: number; alerts: number; doubled: number }>(
     await database.db.execute(sql`select (select count(*)::int from heats) as heats, (select count(*)::int from end_quench_readings) as readings,
+      (select count(*)::int from alerts) as alerts,
+      (select count(*)::int from (select cause_key from alerts group by cause_key, resolved_at having count(*) > 1) d) as doubled,
       (select count(*)::int from imports where status = 'accepted') as accepted,
       (select count(*)::int from imports where status in ('received', 'failed')) as unfinished`),
   );
@@ -122,12 +124,12 @@ describe.skipIf(!onServer)('database connection lost (PostgreSQL server)', () =>
     expect(health.status).toBe(200);
 
     // Nothing of the cut import was stored; its archive row says it did not finish.
-    expect(await counts()).toMatchObject({ heats: 0, readings: 0, accepted: 0, unfinished: 1 });
+    expect(await counts()).toMatchObject({ heats: 0, readings: 0, accepted: 0, unfinished: 1, alerts: 0 });
     // Sent again, it is stored whole.
     const again = await postImport();
     expect(again.status).toBe(201);
     await again.arrayBuffer();
-    expect(await counts()).toMatchObject({ heats: N, readings: N * 8, accepted: 1 });
+    expect(await counts()).toMatchObject({ heats: N, readings: N * 8, accepted: 1, doubled: 0 });
     console.info(`[faults, postgres] cut ${cut} backend(s) mid-import; reads during the cut: ${reads.seen.length} (${reads.seen.filter((s) => s === 503).length} answered 503)`);
   }, 180_000);
 
