@@ -62,6 +62,18 @@ export interface DistanceModel {
   /** Largest leverage (hat value) among the training heats: a new heat beyond it is a hidden extrapolation. */
   maxLeverage?: number;
   comparison: PublishedComparison;
+  /** The held-out heats at this distance, scored on the model trained without them (absent: none held out). */
+  heldOut?: HeldOutScore;
+}
+
+/** Held-out scoring: error and the coverage of the 95 % prediction intervals on heats not used in training. */
+export interface HeldOutScore {
+  n: number;
+  rmse: number | null;
+  /** Mean of observed − predicted. */
+  bias: number | null;
+  /** Share of held-out readings inside their 95 % prediction interval (nominal 0.95). */
+  coverage95: number | null;
 }
 
 /** Range of one predictor over the heats the model was trained on. */
@@ -88,6 +100,8 @@ export interface FittedModel {
   trainingRanges?: PredictorRange[];
   residualCorrelation: ResidualCorrelation | null;
   heatCount: number;
+  /** Present when heats were held out: which, and the pooled score over every distance. */
+  heldOut?: HeldOutScore & { rule: string; heats: number };
 }
 
 export interface FitOptions {
@@ -99,6 +113,8 @@ export interface FitOptions {
   minHeats?: number;
   /** Labels for distances (band labels). */
   label?: (mm: number) => string;
+  /** Heats kept out of training and scored instead (e.g. the newest, or one mill's), with the rule in words. */
+  holdOut?: { isHeldOut: (curve: HeatCurve) => boolean; rule: string };
 }
 
 export const predictorValue = (c: { chemistry: Record<string, unknown>; grainSize: number | null }, name: Predictor): number | undefined =>
@@ -109,7 +125,13 @@ export const minHeatsFor = (predictors: number) => Math.max(20, 3 * (predictors 
 const rmse = (e: readonly number[]) => (e.length ? Math.sqrt(e.reduce((s, x) => s + x * x, 0) / e.length) : null);
 
 /** Fits the model on loaded curves (pure). */
-export function fitChemistryModel(curves: readonly HeatCurve[], options: FitOptions = {}): FittedModel {
+export function fitChemistryModel(allCurves: readonly HeatCurve[], options: FitOptions = {}): FittedModel {
+  const curves = options.holdOut ? allCurves.filter((c) => !options.holdOut!.isHeldOut(c)) : allCurves;
+  const heldCurves = options.holdOut ? allCurves.filter((c) => options.holdOut!.isHeldOut(c)) : [];
+  if (options.holdOut && heldCurves.length === 0) throw insufficientData(`no heat is held out by the rule "${options.holdOut.rule}"`);
+  const heldErrors: number[] = [];
+  let heldInside = 0;
+  const heldHeatIds = new Set<number>();
   const folds = options.folds ?? 5;
   const seed = options.seed ?? 20240611;
   const heats = groupByHeat(curves).map((g) => g[0]);
@@ -181,6 +203,19 @@ export function fitChemistryModel(curves: readonly HeatCurve[], options: FitOpti
       plantErr.push(y[i] - cv.predictions[i]);
       pubErr.push(y[i] - v.hrc);
     });
+    let heldOut: HeldOutScore | undefined;
+    if (options.holdOut) {
+      // Held-out heats: predicted by the model trained without them; coverage of the 95 % prediction interval.
+      const heldById = new Map(groupByHeat(heldCurves).map((g) => [g[0].heatId, g[0]]));
+      const held = pointsAt(heldCurves, d).filter((p) => predictors.every((name) => predictorValue(heldById.get(p.heatId)!, name) !== undefined));
+      const predicted = held.length ? fit.predict(held.map((p) => predictors.map((name) => predictorValue(heldById.get(p.heatId)!, name)!)), { level: 0.95 }) : [];
+      const errors = held.map((p, i) => p.value - predicted[i].fit);
+      const inside = held.filter((p, i) => p.value >= predicted[i].prediction.lower && p.value <= predicted[i].prediction.upper).length;
+      heldErrors.push(...errors);
+      heldInside += inside;
+      for (const p of held) heldHeatIds.add(p.heatId);
+      heldOut = { n: held.length, rmse: rmse(errors), bias: errors.length ? errors.reduce((a, b) => a + b, 0) / errors.length : null, coverage95: held.length ? inside / held.length : null };
+    }
     const resid = new Map<number, number>();
     series.forEach((p, i) => resid.set(p.heatId, fit.residuals[i]));
     residuals.set(d, resid);
@@ -209,6 +244,7 @@ export function fitChemistryModel(curves: readonly HeatCurve[], options: FitOpti
         notComparable: series.length - compared.length,
         firstReason,
       },
+      ...(heldOut ? { heldOut } : {}),
     });
   }
   if (fits.length === 0) throw insufficientData('no distance has enough heats for a model', { skippedDistances });
@@ -228,6 +264,18 @@ export function fitChemistryModel(curves: readonly HeatCurve[], options: FitOpti
     trainingRanges,
     residualCorrelation: residualCorrelation(fits.map((f) => f.distanceMm), residuals),
     heatCount: new Set(fits.flatMap((f) => f.heatIds)).size,
+    ...(options.holdOut
+      ? {
+          heldOut: {
+            rule: options.holdOut.rule,
+            heats: heldHeatIds.size,
+            n: heldErrors.length,
+            rmse: rmse(heldErrors),
+            bias: heldErrors.length ? heldErrors.reduce((a, b) => a + b, 0) / heldErrors.length : null,
+            coverage95: heldErrors.length ? heldInside / heldErrors.length : null,
+          },
+        }
+      : {}),
   };
 }
 
@@ -253,7 +301,19 @@ export interface FitRequest {
   predictors?: Predictor[];
   folds?: number;
   seed?: number;
+  /** Heats cast on or after this date are held out of training and scored (a time split). */
+  holdOutFrom?: string;
+  /** These mills' heats are held out of training and scored (does the model carry over to them?). */
+  holdOutMills?: string[];
   createdBy: string | null;
+}
+
+/** The hold-out rule of a request, or undefined when nothing is held out. */
+export function holdOutRule(request: Pick<FitRequest, 'holdOutFrom' | 'holdOutMills'>): FitOptions['holdOut'] {
+  const mills = request.holdOutMills?.length ? new Set(request.holdOutMills) : null;
+  if (!request.holdOutFrom && !mills) return undefined;
+  const words = [request.holdOutFrom ? `heats cast on or after ${request.holdOutFrom}` : null, mills ? `heats of ${[...mills].join(', ')}` : null].filter(Boolean).join(', and ');
+  return { rule: words, isHeldOut: (c) => (request.holdOutFrom !== undefined && c.castDate >= request.holdOutFrom) || (mills !== null && mills.has(c.mill)) };
 }
 
 export type StoredModel = ModelRecord<Omit<FittedModel, 'residualCorrelation' | 'heatCount' | 'predictors'>, ResidualCorrelation>;
@@ -264,8 +324,9 @@ export async function fitAndStoreModel(db: Db, request: FitRequest): Promise<Sto
   const curves = await loadSeriesCurves(db, { grade: request.grade, mill: request.mill, from: request.from, to: request.to, source });
   if (curves.length === 0) throw insufficientData(`no ${request.grade} curves${request.mill ? ` from ${request.mill}` : ''} in the window`);
   const band = await bandOn(db, request.grade, request.to ?? todayIso());
-  const fitted = fitChemistryModel(curves, { predictors: request.predictors, folds: request.folds, seed: request.seed, label: (mm) => labelFor(band, mm) });
-  const dates = curves.map((c) => c.castDate).sort();
+  const holdOut = holdOutRule(request);
+  const fitted = fitChemistryModel(curves, { predictors: request.predictors, folds: request.folds, seed: request.seed, label: (mm) => labelFor(band, mm), holdOut });
+  const dates = curves.filter((c) => !holdOut?.isHeldOut(c)).map((c) => c.castDate).sort();
   const { residualCorrelation: rc, heatCount, predictors, ...fits } = fitted;
   return (await insertModel(db, {
     grade: request.grade,

@@ -11,6 +11,8 @@ export interface RefitOptions {
   to?: string;
   /** Also fit one model per mill (default true). */
   perMill?: boolean;
+  /** Heats cast on or after this date are held out of training and scored (coverage of the 95 % prediction intervals). */
+  holdOutFrom?: string;
   createdBy?: string;
 }
 
@@ -21,6 +23,8 @@ export interface RefitOutcome {
   version: number | null;
   distances: number;
   problem: string | null;
+  /** With holdOutFrom: the pooled held-out score beside the cross-validated RMSE. */
+  heldOut?: { heats: number; readings: number; coverage95: number | null; rmse: number | null; cvRmse: number | null };
 }
 
 /** Refits the models asked for; a failure on one series is reported and the others go on. */
@@ -37,8 +41,11 @@ export async function refitModels(db: Db, options: RefitOptions = {}): Promise<R
   const outcomes: RefitOutcome[] = [];
   for (const t of targets) {
     try {
-      const m = await fitAndStoreModel(db, { grade: t.grade, mill: t.mill ?? undefined, from: options.from, to: options.to, createdBy: options.createdBy ?? 'refit' });
-      outcomes.push({ ...t, modelId: m.id, version: m.version, distances: m.fits.distances.length, problem: null });
+      const m = await fitAndStoreModel(db, { grade: t.grade, mill: t.mill ?? undefined, from: options.from, to: options.to, holdOutFrom: options.holdOutFrom, createdBy: options.createdBy ?? 'refit' });
+      const h = m.fits.heldOut;
+      const cv = m.fits.distances.map((d) => d.cvRmse);
+      const heldOut = h ? { heats: h.heats, readings: h.n, coverage95: h.coverage95, rmse: h.rmse, cvRmse: cv.length ? Math.sqrt(cv.reduce((a, x) => a + x * x, 0) / cv.length) : null } : undefined;
+      outcomes.push({ ...t, modelId: m.id, version: m.version, distances: m.fits.distances.length, problem: null, ...(heldOut ? { heldOut } : {}) });
     } catch (error) {
       outcomes.push({ ...t, modelId: null, version: null, distances: 0, problem: (error as Error).message });
     }

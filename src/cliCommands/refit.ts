@@ -15,8 +15,9 @@ export function register(program: Command): void {
     .option('--from <date>', 'training window start (cast date, YYYY-MM-DD)')
     .option('--to <date>', 'training window end (cast date, YYYY-MM-DD)')
     .option('--no-per-mill', 'grade-wide models only')
+    .option('--hold-out-from <date>', 'hold heats cast on or after this date out of training and score them (coverage of the 95 % prediction intervals)')
     .option('--json', 'print the outcome as JSON')
-    .action(async (opts: { grade?: string; mill?: string; from?: string; to?: string; perMill: boolean; json?: boolean }) => {
+    .action(async (opts: { grade?: string; mill?: string; from?: string; to?: string; perMill: boolean; holdOutFrom?: string; json?: boolean }) => {
       const config = loadConfig();
       const database = await openDatabase({ url: config.databaseUrl, dataDir: config.dataDir });
       try {
@@ -27,7 +28,10 @@ export function register(program: Command): void {
         else
           for (const o of outcomes) {
             const what = `${o.grade}${o.mill ? ` / ${o.mill}` : ' (all mills)'}`;
-            console.log(o.problem ? `${what}: not refitted: ${o.problem}` : `${what}: model ${o.modelId} (version ${o.version}), ${o.distances} distance(s)`);
+            const held = o.heldOut
+              ? `; held out ${o.heldOut.heats} heat(s): ${o.heldOut.coverage95 === null ? 'no readings to score' : `${(100 * o.heldOut.coverage95).toFixed(1)} % of ${o.heldOut.readings} readings inside their 95 % prediction interval, RMSE ${o.heldOut.rmse?.toFixed(2)} HRC (cross-validated ${o.heldOut.cvRmse?.toFixed(2)})`}`
+              : '';
+            console.log(o.problem ? `${what}: not refitted: ${o.problem}` : `${what}: model ${o.modelId} (version ${o.version}), ${o.distances} distance(s)${held}`);
           }
         process.exitCode = outcomes.some((o) => o.problem) ? 1 : 0;
       } finally {

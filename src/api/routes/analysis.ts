@@ -239,7 +239,7 @@ export function analysisRoutes(app: OpenAPIHono<AppEnv>, db: Db) {
       tags: ['analysis'],
       summary: 'Fit and store a chemistry-to-hardness model (next version)',
       description:
-        'Per distance: OLS coefficients with SE and p, R², RMSE, 5-fold cross-validated RMSE (seeded), and the published predictor (ASTM A255 quenched end, Just 1969 from 4/16 in, capped at the martensite hardness) scored on the same heats beside the model’s cross-validated error there. Also the residual correlation between distances.',
+        'Per distance: OLS coefficients with SE and p, R², RMSE, 5-fold cross-validated RMSE (seeded), and the published predictor (ASTM A255 quenched end, Just 1969 from 4/16 in, capped at the martensite hardness) scored on the same heats beside the model’s cross-validated error there. Also the residual correlation between distances. With holdOutFrom and/or holdOutMills, those heats are kept out of training and scored: per distance and pooled (fits.heldOut), their RMSE, bias and the share inside their 95 % prediction interval (coverage95, nominal 0.95), beside the cross-validated RMSE.',
       request: {
         body: {
           required: true,
@@ -255,6 +255,8 @@ export function analysisRoutes(app: OpenAPIHono<AppEnv>, db: Db) {
                   predictors: z.array(z.enum(PREDICTOR_NAMES as [string, ...string[]])).min(1).optional(),
                   folds: z.number().int().min(2).max(20).optional(),
                   seed: z.number().int().optional(),
+                  holdOutFrom: isoDate.optional().openapi({ description: 'Heats cast on or after this date are held out of training and scored.' }),
+                  holdOutMills: z.array(z.string().min(1)).min(1).optional().openapi({ description: 'These mills’ heats are held out of training and scored.' }),
                 })
                 .openapi('ModelFitRequest'),
             },
