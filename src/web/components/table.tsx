@@ -34,12 +34,17 @@ export function formatValue(value: unknown, digits?: number): string {
   return String(value);
 }
 
+/**
+ * Readable at any width without hidden columns: headers and text cells wrap; on a narrow screen a
+ * table of more than two columns stacks each row as label–value lines (site.css, "stacked tables"),
+ * so nothing sits off to the side.
+ */
 export function DataTable<R extends Record<string, unknown>>(props: { table: TableData<R>; caption?: string; id?: string }) {
   const table = { ...props.table, columns: props.table.columns.filter((c) => !c.csvOnly) };
   if (table.rows.length === 0) return <p class="empty">No rows.</p>;
   return (
     <div class="table-wrap">
-      <table id={props.id}>
+      <table id={props.id} class={table.columns.length > 2 ? 'stack' : undefined}>
         {props.caption ? <caption class="sr">{props.caption}</caption> : null}
         <thead>
           <tr>
@@ -54,7 +59,7 @@ export function DataTable<R extends Record<string, unknown>>(props: { table: Tab
           {table.rows.map((r) => (
             <tr>
               {table.columns.map((c) => (
-                <td class={c.numeric ? 'num' : c.wrap ? 'wrap' : undefined}>{c.cell ? c.cell(r) : formatValue(r[c.key], c.digits)}</td>
+                <td class={c.numeric ? 'num' : c.wrap ? 'wrap' : undefined} data-label={c.label}>{c.cell ? c.cell(r) : formatValue(r[c.key], c.digits)}</td>
               ))}
             </tr>
           ))}

@@ -123,8 +123,16 @@ export function alertsPage(app: Hono<any>, db: Db) {
           {kit.table('alerts', 'Alerts', {
             columns: [
               { key: 'id', label: 'Alert', cell: (r: Row) => <span id={`alert-${r.id}`}>#{r.id}</span> },
-              { key: 'severity', label: 'Severity', cell: (r: Row) => <Tag kind={SEVERITY_KIND[r.severity]}>{r.severity}</Tag> },
-              { key: 'status', label: 'Status', cell: (r: Row) => <span class="status" data-status={r.status}>{r.status}</span> },
+              {
+                key: 'severity',
+                label: 'Severity, status',
+                cell: (r: Row) => (
+                  <>
+                    <Tag kind={SEVERITY_KIND[r.severity]}>{r.severity}</Tag> <span class="status" data-status={r.status}>{r.status}</span>
+                  </>
+                ),
+              },
+              { key: 'status', label: 'Status', csvOnly: true },
               {
                 key: 'title',
                 label: 'What',
@@ -155,12 +163,24 @@ export function alertsPage(app: Hono<any>, db: Db) {
                   </>
                 ),
               },
-              { key: 'ruleName', label: 'Rule', wrap: true },
+              { key: 'ruleName', label: 'Rule' },
               { key: 'rule', label: 'Rule id', csvOnly: true },
-              { key: 'mill', label: 'Mill' },
-              { key: 'grade', label: 'Grade' },
-              { key: 'heatNumber', label: 'Heat', cell: (r: Row) => (r.heat ? <a href={`/heats/${r.heat.id}`}>{r.heat.heatNumber}</a> : '–') },
-              { key: 'lotNumber', label: 'Lot' },
+              { key: 'mill', label: 'Mill, grade', cell: (r: Row) => [r.mill, r.grade].filter(Boolean).join(' · ') || '–' },
+              { key: 'grade', label: 'Grade', csvOnly: true },
+              {
+                key: 'heatNumber',
+                label: 'Heat, lot',
+                cell: (r: Row) =>
+                  r.heat ? (
+                    <>
+                      <a href={`/heats/${r.heat.id}`}>{r.heat.heatNumber}</a>
+                      {r.lotNumber ? ` / ${r.lotNumber}` : ''}
+                    </>
+                  ) : (
+                    '–'
+                  ),
+              },
+              { key: 'lotNumber', label: 'Lot', csvOnly: true },
               { key: 'distance', label: 'Distance' },
               { key: 'createdAt', label: 'Raised', cell: (r: Row) => r.createdAt.slice(0, 16).replace('T', ' ') },
               { key: 'actions', label: 'Action', htmlOnly: true, cell: (r: Row) => <AlertActions alert={r} back={back} /> },

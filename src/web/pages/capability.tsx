@@ -1,6 +1,8 @@
-// Capability: for a grade (one mill or all), Ppk at every band distance with its interval; for one
-// distance the histogram with the band limits and fitted normal, the normal probability plot, the
-// indices with their intervals, and the flags in plain words.
+// Capability, arranged around two questions an engineer asks of a supply: will it stay inside our band
+// (the answer first, in a sentence, with the share expected outside), and where is it closest to failing
+// (each distance's margin to its nearer limit, in overall SDs, beside Ppk and its interval). The full
+// index set (spread and centring, tails) follows for whoever checks the arithmetic; for one chosen
+// distance, the heats against the band and a normal-scores check, with the flags in plain words.
 import type { Hono } from 'hono';
 import type { Child } from 'hono/jsx';
 import type { Db } from '../../db/connection.ts';
@@ -80,6 +82,35 @@ function indexRow(d: DistanceCapability, mill: string | null) {
 
 type IndexRow = ReturnType<typeof indexRow>;
 
+/** The nearer band limit of a distance and the margin to it in overall SDs (3·Ppk for a normal model). */
+function margin(r: IndexRow): { side: 'min' | 'max' | null; limit: number | null; sds: number | null } {
+  if (r.mean === null || !r.sigmaOverall) return { side: null, limit: null, sds: null };
+  const below = r.lsl === null ? Infinity : (r.mean - r.lsl) / r.sigmaOverall;
+  const above = r.usl === null ? Infinity : (r.usl - r.mean) / r.sigmaOverall;
+  if (!Number.isFinite(below) && !Number.isFinite(above)) return { side: null, limit: null, sds: null };
+  return below <= above ? { side: 'min', limit: r.lsl, sds: below } : { side: 'max', limit: r.usl, sds: above };
+}
+
+function marginRow(r: IndexRow) {
+  const m = margin(r);
+  return {
+    ...r,
+    band: `${r.lsl ?? '–'} – ${r.usl ?? '–'}`,
+    nearer: m.side === null ? null : `${m.side} ${m.limit}`,
+    marginSds: m.sds,
+  };
+}
+
+type MarginRow = ReturnType<typeof marginRow>;
+
+/** "about 1 heat in 2,400", or "fewer than 1 in a million" (from expected PPM). */
+function oneIn(ppm: number | null): string {
+  if (ppm === null || !Number.isFinite(ppm)) return 'not worked out';
+  if (ppm < 1) return 'fewer than 1 heat in a million';
+  if (ppm >= 500_000) return `about ${fmt(ppm / 10_000, 0)} % of heats`;
+  return `about 1 heat in ${Math.round(1_000_000 / ppm).toLocaleString('en-GB')}`;
+}
+
 /** Several mills at each distance: the mills side by side, then the supply (heat-weighted) row. */
 function supplyRows(distances: readonly DistanceCapability[]) {
   return distances.flatMap((d) => {
@@ -132,30 +163,67 @@ const SUPPLY_COLUMNS = [
   { key: 'observedPpm', label: 'Observed PPM', numeric: true, digits: 0 },
 ];
 
-const INDEX_COLUMNS = [
+const interval = (lo: number | null, hi: number | null) => (lo === null ? '–' : `${fmt(lo)} – ${fmt(hi)}`);
+
+/** The figures behind every table, for the CSV (not shown). */
+const ALL_FIGURES_CSV = [
+  { key: 'lsl', label: 'Band min', csvOnly: true },
+  { key: 'usl', label: 'Band max', csvOnly: true },
+  { key: 'sigmaWithin', label: 'σ within', csvOnly: true },
+  { key: 'sigmaOverall', label: 'σ overall', csvOnly: true },
+  { key: 'cp', label: 'Cp', csvOnly: true },
+  { key: 'cpk', label: 'Cpk', csvOnly: true },
+  { key: 'cpkLower', label: 'Cpk 95% low', csvOnly: true },
+  { key: 'cpkUpper', label: 'Cpk 95% high', csvOnly: true },
+  { key: 'pp', label: 'Pp', csvOnly: true },
+  { key: 'ppkLower', label: 'Ppk 95% low', csvOnly: true },
+  { key: 'ppkUpper', label: 'Ppk 95% high', csvOnly: true },
+  { key: 'percentilePpk', label: 'Ppk (percentile)', csvOnly: true },
+  { key: 'fittedPpk', label: 'Ppk (fitted distribution)', csvOnly: true },
+  { key: 'expectedPpm', label: 'Expected PPM', csvOnly: true },
+  { key: 'observedPpm', label: 'Observed PPM', csvOnly: true },
+  { key: 'adP', label: 'Normality p', csvOnly: true },
+];
+
+/** Where the supply is closest to failing: one line per distance, the margin first. */
+const MARGIN_COLUMNS = [
   { key: 'distance', label: 'Distance' },
-  { key: 'lsl', label: 'Band min', numeric: true },
-  { key: 'usl', label: 'Band max', numeric: true },
-  { key: 'n', label: 'n', numeric: true },
+  { key: 'band', label: 'Band HRC' },
+  { key: 'n', label: 'Heats', numeric: true },
+  { key: 'mean', label: 'Mean HRC', numeric: true, digits: 1 },
+  { key: 'nearer', label: 'Nearer limit' },
+  { key: 'marginSds', label: 'Margin (overall SDs)', numeric: true, digits: 1 },
+  { key: 'ppk', label: 'Ppk', numeric: true, digits: 2 },
+  { key: 'ppkInterval', label: 'Ppk 95%', htmlOnly: true, cell: (r: MarginRow) => interval(r.ppkLower, r.ppkUpper) },
+  { key: 'expectedPpm', label: 'Expected outside, per million', numeric: true, digits: 0 },
+  { key: 'observedPpm', label: 'Seen outside, per million', numeric: true, digits: 0 },
+  { key: 'flags', label: 'Worth a look', wrap: true },
+  ...ALL_FIGURES_CSV.filter((c) => !['expectedPpm', 'observedPpm'].includes(c.key)),
+];
+
+/** Spread and centring: the within/overall SDs and the indices built on them. */
+const SPREAD_COLUMNS = [
+  { key: 'distance', label: 'Distance' },
+  { key: 'n', label: 'Heats', numeric: true },
   { key: 'mean', label: 'Mean', numeric: true, digits: 2 },
-  { key: 'sigmaWithin', label: 'σ within', numeric: true, digits: 3 },
+  { key: 'sigmaWithin', label: 'σ within (moving range)', numeric: true, digits: 3 },
   { key: 'sigmaOverall', label: 'σ overall', numeric: true, digits: 3 },
   { key: 'cp', label: 'Cp', numeric: true, digits: 2 },
   { key: 'cpk', label: 'Cpk', numeric: true, digits: 2 },
-  { key: 'cpkInterval', label: 'Cpk 95%', htmlOnly: true, cell: (r: IndexRow) => (r.cpkLower === null ? '–' : `${fmt(r.cpkLower)} – ${fmt(r.cpkUpper)}`) },
-  { key: 'cpkLower', label: 'Cpk 95% low', csvOnly: true },
-  { key: 'cpkUpper', label: 'Cpk 95% high', csvOnly: true },
+  { key: 'cpkInterval', label: 'Cpk 95%', htmlOnly: true, cell: (r: IndexRow) => interval(r.cpkLower, r.cpkUpper) },
   { key: 'pp', label: 'Pp', numeric: true, digits: 2 },
-  { key: 'ppk', label: 'Ppk', numeric: true, digits: 2 },
-  { key: 'ppkInterval', label: 'Ppk 95%', htmlOnly: true, cell: (r: IndexRow) => (r.ppkLower === null ? '–' : `${fmt(r.ppkLower)} – ${fmt(r.ppkUpper)}`) },
-  { key: 'ppkLower', label: 'Ppk 95% low', csvOnly: true },
-  { key: 'ppkUpper', label: 'Ppk 95% high', csvOnly: true },
-  { key: 'percentilePpk', label: 'Ppk (percentile)', numeric: true, digits: 2 },
+];
+
+/** The tails: Ppk three ways and the share outside, expected and seen. */
+const TAIL_COLUMNS = [
+  { key: 'distance', label: 'Distance' },
+  { key: 'ppk', label: 'Ppk (normal)', numeric: true, digits: 2 },
+  { key: 'ppkInterval', label: 'Ppk 95%', htmlOnly: true, cell: (r: IndexRow) => interval(r.ppkLower, r.ppkUpper) },
   { key: 'fittedPpk', label: 'Ppk (fitted distribution)', numeric: true, digits: 2 },
+  { key: 'percentilePpk', label: 'Ppk (percentile)', numeric: true, digits: 2 },
   { key: 'expectedPpm', label: 'Expected PPM', numeric: true, digits: 0 },
   { key: 'observedPpm', label: 'Observed PPM', numeric: true, digits: 0 },
   { key: 'adP', label: 'Normality p', numeric: true, digits: 3 },
-  { key: 'flags', label: 'Flags', wrap: true },
 ];
 
 export function capabilityPage(app: Hono<any>, db: Db) {
@@ -184,6 +252,12 @@ export function capabilityPage(app: Hono<any>, db: Db) {
     const rows = study.distances.map((d) => indexRow(d, study.mill));
     const perMillRows = (study.perMill ?? []).flatMap((m) => m.distances.map((d) => indexRow(d, m.mill)));
     const valueRows = values.map((v, i) => ({ index: i + 1, hrc: v }));
+    const marginRows = rows.map(marginRow);
+    // The weakest distance: the smallest margin to a limit (one mill), or the largest supply share outside (several).
+    const judged = marginRows.filter((m) => m.marginSds !== null);
+    const weakest = judged.length ? judged.reduce((a, b) => ((b.marginSds as number) < (a.marginSds as number) ? b : a)) : null;
+    const supplyWorst = study.distances.filter((d) => d.supply).reduce<DistanceCapability | null>((a, d) => (!a || (d.supply!.expectedPpm > a.supply!.expectedPpm) ? d : a), null);
+    const below133 = judged.filter((m) => m.ppkLower !== null && m.ppkLower < 1.33).length;
     return {
       title: 'Capability',
       section: 'capability',
@@ -191,22 +265,48 @@ export function capabilityPage(app: Hono<any>, db: Db) {
         <>
           <h1>Capability</h1>
           <p class="lead">
-            How well does the supply fit the band? Indices against the band in force on {study.bandInForceOn}, the end of the window (version {study.band.version}, from {study.band.effectiveFrom}), {study.heats} heat(s).
-            {study.mill || !study.distances.some((d) => d.supply) ? '' : ' Several mills: no single index is worked out over the mixture of mills (it can read better than every mill on its own). Each mill keeps its own indices, side by side below, and the supply figure is the share of heats expected outside the band, the mills’ shares weighted by their heats.'}
+            Will this supply stay inside our band, and where is it closest to failing? Judged against the band in force on {study.bandInForceOn}, the end of the window (version {study.band.version}, from {study.band.effectiveFrom}), on {study.heats} heat(s).
+            {study.mill || !study.distances.some((d) => d.supply) ? '' : ' Several mills: no single index is worked out over the mixture of mills (it can read better than every mill on its own). Each mill keeps its own figures, and the supply answer is the share of heats expected outside the band, the mills’ shares weighted by their heats.'}
           </p>
           <SeriesForm action="/capability" choice={choice} anyMill />
-          <Caution>Capability indices describe the supply as a whole; they neither accept nor reject a heat. Acceptance follows the purchase specification and qualified personnel; statistics do not replace testing.</Caution>
+          <Caution>These figures describe the supply as a whole; they neither accept nor reject a heat. Acceptance follows the purchase specification and qualified personnel; statistics do not replace testing.</Caution>
+          <section class="card answer" id="answer">
+            <h2>Will it stay inside the band?</h2>
+            {supplyWorst && !study.mill ? (
+              <p>
+                The supply's weakest distance is <strong>{supplyWorst.label ?? mmLabel(supplyWorst.distanceMm)}</strong>: {oneIn(supplyWorst.supply!.expectedPpm)} expected outside the band ({fmt(supplyWorst.supply!.expectedPpm, 0)} per million, 95 % interval {fmt(supplyWorst.supply!.expectedPpmInterval.lower, 0)} – {fmt(supplyWorst.supply!.expectedPpmInterval.upper, 0)}); {fmt(supplyWorst.supply!.observedPpm, 0)} per million seen so far.
+              </p>
+            ) : weakest ? (
+              <p>
+                Closest to failing at <strong>{weakest.distance}</strong>: mean {fmt(weakest.mean, 1)} HRC, {fmt(weakest.marginSds, 1)} overall SDs from the band {weakest.nearer}. Ppk {fmt(weakest.ppk)} (95 % interval {interval(weakest.ppkLower, weakest.ppkUpper)}); {oneIn(weakest.fittedPpk !== null ? null : weakest.expectedPpm)} expected outside there
+                {weakest.fittedPpk !== null ? ' (the readings are not normal: see the fitted figure below)' : ''}; {fmt(weakest.observedPpm, 0)} per million seen so far.
+              </p>
+            ) : (
+              <p>No distance has enough heats with spread to answer yet.</p>
+            )}
+            {judged.length ? (
+              <p>
+                {below133 === 0 ? `At every one of the ${judged.length} distances the Ppk interval stays at or above 1.33.` : `${below133} of ${judged.length} distance(s) have a Ppk interval reaching below 1.33 (common practice as the least for a supply a plant need not watch closely).`}
+              </p>
+            ) : null}
+          </section>
+          <h2>Where is it closest to failing?</h2>
           {kit.chart({
             id: 'ppk',
-            title: `Ppk by distance: ${who}`,
-            note: `Point: Ppk; bar: its 95% interval (Bissell 1990); dashed line: 1.33. In the table: where normality is rejected (on the grouped readings when they are whole HRC), Ppk (fitted distribution) from a Box–Cox or Johnson fit; Ppk (percentile) only from ${PERCENTILE_MIN_N} heats, where the 0.135 % tails can be read from the data.`,
+            title: `Margin to the band by distance: ${who}`,
+            note: `Point: Ppk; bar: its 95% interval (Bissell 1990); dashed line: 1.33. The table puts each distance's margin to its nearer limit first, in overall SDs (3 × Ppk under a normal model). Where normality is rejected (on the grouped readings when they are whole HRC), the fitted-distribution Ppk from a Box–Cox or Johnson fit is in the tails table below; the percentile Ppk only from ${PERCENTILE_MIN_N} heats.`,
             spec: pagePpkSpec(study),
-            table: { columns: INDEX_COLUMNS, rows },
+            table: { columns: MARGIN_COLUMNS, rows: marginRows },
             openUpTo: 40,
           })}
+          <details class="more" id="all-indices">
+            <summary>Every index: spread and centring, and the tails</summary>
+            {kit.table('spread', `Spread and centring ${who}`, { columns: SPREAD_COLUMNS, rows })}
+            {kit.table('tails', `Tails ${who}`, { columns: TAIL_COLUMNS, rows })}
+          </details>
           {study.distances.some((d) => d.supply) ? (
             <>
-              <h2>Supply: mills side by side</h2>
+              <h2>Each mill's share of the risk</h2>
               {kit.table('supply', `Supply ${choice.grade}: mills side by side`, { columns: SUPPLY_COLUMNS, rows: supplyRows(study.distances) })}
               <p class="note">
                 Expected PPM per mill: normal model on the mill's mean and overall SD. Supply: the heat-weighted sum of the mills' expected PPM, its 95 % interval by generalized pivotal quantities (Weerahandi 1993) with the mix of mills held fixed. Cpk/Ppk intervals: Bissell (1990); the df of each index is in the API answer (intervals.method).
@@ -215,10 +315,10 @@ export function capabilityPage(app: Hono<any>, db: Db) {
           ) : null}
           {chosen && r ? (
             <>
-              <h2>At {where}</h2>
+              <h2>A closer look at {where}</h2>
               <div class="card">
                 <p>
-                  <strong>What the flags say.</strong>
+                  <strong>Worth a look here.</strong>
                 </p>
                 <ul class="flags">
                   {flagSentences(r, values).map((s) => (
@@ -233,16 +333,16 @@ export function capabilityPage(app: Hono<any>, db: Db) {
               <div class="grid2">
                 {kit.chart({
                   id: 'histogram',
-                  title: `Histogram at ${where}: ${who}`,
-                  note: 'Bars: heats per hardness bin; line: the fitted normal (mean and overall σ); dashed: band limits.',
+                  title: `The heats at ${where} against the band: ${who}`,
+                  note: 'Bars: heats per hardness step; line: the normal curve of the mean and overall σ; dashed: the band limits.',
                   spec: histogramSpec(values, { mean: r.mean, sd: r.sigmaOverall }, { lsl: chosen.lsl, usl: chosen.usl }, `Histogram at ${where}`),
                   table: { columns: [{ key: 'index', label: '#', numeric: true }, { key: 'hrc', label: 'HRC', numeric: true }], rows: valueRows },
                   openUpTo: 0,
                 })}
                 {kit.chart({
                   id: 'probability',
-                  title: `Normal probability plot at ${where}`,
-                  note: 'Points near the dashed line look normal; a bend or S-shape means skew or heavy tails.',
+                  title: `Is the normal model fair at ${where}?`,
+                  note: 'Each heat against its normal score: points along the dashed line mean the normal model holds; a bend or S-shape means skew or heavy tails, and the fitted figure is the one to use.',
                   spec: probabilityPlotSpec(values, { mean: r.mean, sd: r.sigmaOverall }, `Normal probability plot at ${where}`),
                   table: { columns: [{ key: 'index', label: '#', numeric: true }, { key: 'hrc', label: 'HRC', numeric: true }], rows: valueRows },
                   openUpTo: 0,
@@ -254,8 +354,8 @@ export function capabilityPage(app: Hono<any>, db: Db) {
           )}
           {perMillRows.length ? (
             <>
-              <h2>Per mill</h2>
-              {kit.table('per-mill', `Capability per mill ${choice.grade}`, { columns: [{ key: 'mill', label: 'Mill' }, ...INDEX_COLUMNS], rows: perMillRows })}
+              <h2>Each mill on its own</h2>
+              {kit.table('per-mill', `Capability per mill ${choice.grade}`, { columns: [{ key: 'mill', label: 'Mill' }, ...MARGIN_COLUMNS], rows: perMillRows.map(marginRow) })}
             </>
           ) : null}
         </>

@@ -80,7 +80,7 @@ export async function heatSheet(db: Db, heat: HeatDetail, kit: PageKit): Promise
     ['Mill', heat.mill],
     ['Grade', <a href={`/grades/${encodeURIComponent(heat.grade)}`}>{heat.grade}</a>],
     ['Cast', heat.castDate],
-    ['Certificate', `${heat.certificateNumber ?? '–'} (revision ${heat.revision}${heat.revisions.length > 1 ? ` of ${heat.revisions.length}` : ''})`],
+    ['Inspection certificate (EN 10204 3.1) / mill test report', `${heat.certificateNumber ?? '–'} (revision ${heat.revision}${heat.revisions.length > 1 ? ` of ${heat.revisions.length}` : ''})`],
     ['Grain size (ASTM E112)', heat.grainSizeStated ? `${heat.grainSizeStated} as stated (${heat.grainSize === null ? 'no single number: calculations treat it as not reported' : `${heat.grainSize} used in calculations`})` : (heat.grainSize ?? '–')],
     ['Band in force on the cast date', band ? `${heat.grade} version ${band.version} (${band.kind}, from ${band.effectiveFrom})` : 'none'],
     ['Heat verdict', review.verdict ? <><Tag kind={review.verdict.verdict === 'pass' ? 'good' : review.verdict.verdict === 'fail' ? 'bad' : 'odd'}>{review.verdict.verdict}</Tag> {review.verdict.explanation}</> : 'not judged'],

@@ -52,7 +52,7 @@ export function heatPages(app: Hono<any>, db: Db) {
               { key: 'mill', label: 'Mill' },
               { key: 'grade', label: 'Grade' },
               { key: 'castDate', label: 'Cast' },
-              { key: 'certificate', label: 'Certificate' },
+              { key: 'certificate', label: 'Inspection certificate (3.1)' },
               { key: 'revision', label: 'Revision', numeric: true },
               { key: 'grainSize', label: 'Grain size', numeric: true },
               { key: 'C', label: 'C %', numeric: true, digits: 2 },

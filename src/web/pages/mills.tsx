@@ -29,7 +29,7 @@ export function millsPage(app: Hono<any>, db: Db) {
       ppkLower: r.lowest?.lower ?? null,
       ppkUpper: r.lowest?.upper ?? null,
       at: r.lowest ? (r.lowest.label ?? mmLabel(r.lowest.distanceMm)) : null,
-      reporting: r.dataQuality.findings.length ? r.dataQuality.findings.join('; ') : r.dataQuality.verdict === 'not_applicable' ? 'too few readings to judge' : 'looks measured',
+      reporting: r.dataQuality.findings.length ? r.dataQuality.findings.join('; ') : r.dataQuality.verdict === 'not_applicable' ? 'too few readings to judge' : 'no sign of rounding or smoothing beyond what measurement gives',
     }));
     type Row = (typeof rows)[number];
     const table = {
@@ -62,12 +62,16 @@ export function millsPage(app: Hono<any>, db: Db) {
         {
           key: 'reporting',
           label: 'Reporting',
+          // A gentle word for what the tests found, with the evidence one click away (the numbers behind it).
           cell: (r: Row) => (
-            <span title={r.reporting}>
-              <Tag kind={r.dataQuality.verdict === 'fail' ? 'bad' : r.dataQuality.verdict === 'warn' ? 'odd' : 'none'}>
-                {r.dataQuality.verdict === 'fail' ? 'looks edited' : r.dataQuality.verdict === 'warn' ? 'doubtful' : r.dataQuality.verdict === 'pass' ? 'looks measured' : 'too few'}
-              </Tag>
-            </span>
+            <details class="evidence-cell">
+              <summary>
+                <Tag kind={r.dataQuality.verdict === 'fail' ? 'bad' : r.dataQuality.verdict === 'warn' ? 'odd' : 'none'}>
+                  {r.dataQuality.verdict === 'fail' ? 'ask for raw data' : r.dataQuality.verdict === 'warn' ? 'worth a check' : r.dataQuality.verdict === 'pass' ? 'as measured' : 'too few'}
+                </Tag>
+              </summary>
+              <small>{r.reporting}</small>
+            </details>
           ),
         },
         {
@@ -110,7 +114,7 @@ export function millsPage(app: Hono<any>, db: Db) {
             Heats: those with a measured end-quench curve; curves a certificate states as calculated from chemistry are counted beside them and left out of every figure. In band: heats whose deciding end-quench test conforms to the band in force on the cast date (a receiving re-test overrides the certificate). Lowest Ppk: the smallest Ppk over the band distances of the active band, from the mill's
             certificate curves; as the minimum of several estimates it reads somewhat low, and its interval is worked out jointly over all the distances (Šidák), so it covers the weakest distance's true Ppk at 95 % or more. Trend: the whole-curve level the drift alerts watch (EWMA of the curve's mean standardised deviation against its designed limit), at the newest heat: steady within half-way to its limit, a signal beyond it or when the newest heat signals in level or shape. Reporting: whether the
             mill's certificate readings favour even numbers (chi-square on even/odd) or scatter less than measured readings can (against the other
-            mills' scatter); hover for the numbers. "Looks edited" is a reason to ask the mill for raw data, not proof.
+            mills' scatter); open the word for the numbers. "Ask for raw data" means the readings are more regular than measured readings usually are: a reason to ask the mill for its raw test records, not proof that anything was changed.
           </p>
           {chartRows.length
             ? kit.chart({
