@@ -46,10 +46,10 @@ async function stop(name: string, path: string, from?: string): Promise<string> 
 }
 
 describe('the five-minute tour', () => {
-  it('1. Mills: a rising trend at QUELLMARK 20MnCr5-D, and SERRANIA readings that look edited', async () => {
+  it('1. Mills: a rising trend at QUELLMARK 20MnCr5-D, and SERRANIA readings more regular than measured ones (ask for raw data)', async () => {
     const text = await stop('1-mills', '/mills');
     expect(text).toMatch(/QUELLMARK\s+20MnCr5-D[^\n]*(rising|signal up)/);
-    expect(text).toMatch(/SERRANIA[^\n]*looks edited/);
+    expect(text).toMatch(/SERRANIA[^\n]*ask for raw data/);
   });
 
   it('2. Trends: the manganese creep lifts the whole-curve level past its designed limit at QUELLMARK 20MnCr5-D', async () => {
@@ -64,7 +64,8 @@ describe('the five-minute tour', () => {
     const copy = site.demo.stories.copiedCertificate;
     expect(text).toContain(`Heat ${copy.copyHeat} (${copy.mill}, ${copy.grade}) reports the same curve and chemistry as heat ${copy.sourceHeat}`);
     const drift = site.demo.stories.manganeseCreep;
-    expect(text).toMatch(new RegExp(`curve_level_shift\\s+${drift.mill}\\s+${drift.grade}`));
+    // The rule in words (src/alerts/ruleNames.ts), then the series.
+    expect(text).toMatch(new RegExp(`Curve level drifting\\s+${drift.mill} · ${drift.grade}`));
   });
 
   it('4. Heat sheet of the copy: the whole certificate repeats an earlier heat', async () => {
@@ -103,5 +104,13 @@ describe('the five-minute tour', () => {
     expect(text).toMatch(/no longer agrees with ours/);
     expect(text).toContain(`${story.mill} ${story.grade}: agreement with our laboratory`);
     expect(text).toMatch(/Lots due for a re-test \(\d+\)/);
+  });
+
+  it('8. Capability: will the supply stay inside the band, and where is it closest to failing', async () => {
+    const text = await stop('8-capability', '/capability?grade=4140-D&mill=VARNHOLT', '#answer');
+    expect(text).toMatch(/Will it stay inside the band\?/);
+    expect(text).toMatch(/Closest to failing at \S+/);
+    expect(text).toMatch(/overall SDs from the band (min|max)/);
+    expect(text).toMatch(/Where is it closest to failing\?/);
   });
 });

@@ -163,7 +163,7 @@ const SUPPLY_COLUMNS = [
   { key: 'observedPpm', label: 'Observed PPM', numeric: true, digits: 0 },
 ];
 
-const interval = (lo: number | null, hi: number | null) => (lo === null ? '–' : `${fmt(lo)} – ${fmt(hi)}`);
+const interval = (lo: number | null, hi: number | null) => (lo === null ? '–' : `${fmt(lo)} – ${fmt(hi)}`);
 
 /** The figures behind every table, for the CSV (not shown). */
 const ALL_FIGURES_CSV = [
@@ -278,8 +278,11 @@ export function capabilityPage(app: Hono<any>, db: Db) {
               </p>
             ) : weakest ? (
               <p>
-                Closest to failing at <strong>{weakest.distance}</strong>: mean {fmt(weakest.mean, 1)} HRC, {fmt(weakest.marginSds, 1)} overall SDs from the band {weakest.nearer}. Ppk {fmt(weakest.ppk)} (95 % interval {interval(weakest.ppkLower, weakest.ppkUpper)}); {oneIn(weakest.fittedPpk !== null ? null : weakest.expectedPpm)} expected outside there
-                {weakest.fittedPpk !== null ? ' (the readings are not normal: see the fitted figure below)' : ''}; {fmt(weakest.observedPpm, 0)} per million seen so far.
+                Closest to failing at <strong>{weakest.distance}</strong>: mean {fmt(weakest.mean, 1)} HRC, {fmt(weakest.marginSds, 1)} overall SDs from the band {weakest.nearer}. Ppk {fmt(weakest.ppk)} (95 % interval {interval(weakest.ppkLower, weakest.ppkUpper)}).{' '}
+                {weakest.fittedPpk !== null
+                  ? `The readings there are not normal, so the normal figures may mislead: the fitted distribution gives Ppk ${fmt(weakest.fittedPpk)} (tails table below).`
+                  : `Expected outside there: ${oneIn(weakest.expectedPpm)}.`}{' '}
+                Seen outside so far: {fmt(weakest.observedPpm, 0)} per million.
               </p>
             ) : (
               <p>No distance has enough heats with spread to answer yet.</p>
