@@ -96,7 +96,7 @@ export function analysisRoutes(app: OpenAPIHono<AppEnv>, db: Db) {
       method: 'get',
       path: '/api/v1/data-quality',
       tags: ['analysis'],
-      summary: 'Signs of edited data in each mill’s certificates of a grade',
+      summary: 'How each mill reports its readings for a grade: regularity beyond what measurement gives (a reason to ask for raw data, not proof)',
       description:
         'Per mill: preference for even readings (Pearson chi-square on even/odd, readings above 20 HRC) and curves too smooth to be measured (scatter about local quadratics against the repeatability shown by the other mills of the grade, rounding included). A flag is a reason to ask the mill for raw data, not proof of anything.',
       request: { query: z.object({ grade: z.string().min(1), mill: z.string().optional(), from: isoDate.optional(), to: isoDate.optional() }) },
