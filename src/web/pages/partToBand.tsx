@@ -6,7 +6,6 @@ import type { Db } from '../../db/connection.ts';
 import { listGrades, listMills } from '../../db/referenceData.ts';
 import { equivalenceTable, LIMITS, LOCATION_LABELS, partRequirement, type PartLocation, type PartRequirementResult, type QuenchInput } from '../../analysis/partRequirement.ts';
 import { AnalysisError } from '../../analysis/errors.ts';
-import { cachedSpecimen } from '../../hardenability/quench/equivalence.ts';
 import { HardenabilityInputError } from '../../hardenability/errors.ts';
 import type { Agitation, Medium } from '../../hardenability/quench/severity.ts';
 import { Caution } from '../components/caution.tsx';
@@ -26,7 +25,6 @@ function referenceTable() {
   table ??= equivalenceTable(TABLE_DIAMETERS, [{ medium: 'oil' }, { medium: 'water' }]);
   return table;
 }
-let warmed = false;
 
 interface FormValues {
   grade: string;
@@ -215,18 +213,9 @@ function ReferenceTable(props: { kit: PageKit }) {
 }
 
 export function partToBandPage(app: Hono<any>, db: Db) {
-  if (!warmed) {
-    warmed = true;
-    // Compute the end-quench specimen and the table once, off the first request.
-    setTimeout(() => {
-      try {
-        cachedSpecimen();
-        referenceTable();
-      } catch {
-        // computed again (and reported) on the first request
-      }
-    }, 0).unref?.();
-  }
+  // The end-quench specimen and the bar table are computed on the page's first request (a few seconds,
+  // then cached): a warm-up when the app is created held the event loop for as long, delaying every other
+  // answer (health checks and webhook deliveries included) right after start.
   page(app, '/part-to-band', async (c, kit) => {
     const [grades, mills] = await Promise.all([listGrades(db), listMills(db)]);
     const gradeCodes = grades.map((g) => g.code);
