@@ -282,7 +282,15 @@ function describeMapping(columns: readonly ColumnReading[], missing: readonly st
 /** Reads the first rows of a CSV or XLSX document and recognises its headers. */
 export async function previewTableHeaders(bytes: Uint8Array, format: 'csv' | 'xlsx', options: Omit<RecogniseOptions, 'delimiter' | 'sheet'> = {}): Promise<HeaderMapping> {
   if (format === 'csv') {
-    const table = readCsv(bytes);
+    // The header and the first rows are enough: read up to the last line break in the first 256 KiB
+    // (the whole file when that part cannot be read on its own, e.g. a quoted cell runs past it).
+    const head = bytes.byteLength > 262_144 ? bytes.subarray(0, bytes.lastIndexOf(0x0a, 262_144) + 1) : bytes;
+    let table;
+    try {
+      table = readCsv(head.byteLength > 0 ? head : bytes);
+    } catch {
+      table = readCsv(bytes);
+    }
     return recogniseHeaders(table.rows.slice(0, 61), { ...options, delimiter: table.delimiter === ',' ? undefined : table.delimiter });
   }
   const table = await readXlsx(bytes);

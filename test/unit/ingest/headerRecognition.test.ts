@@ -86,4 +86,14 @@ describe('the preview and the layout', () => {
     expect(layout.distances).toEqual([{ unit: 'sixteenths', columns: { J1: 1, J2: 2, J3: 3, J4: 4, J5: 5, J6: 6, J8: 8, J10: 10, J12: 12, J16: 16 } }]);
     expect(layout.ignoreColumns).toEqual(['Remarks']);
   });
+
+  test('a large CSV is previewed from its first part, with the same mapping', async () => {
+    const lines = ['heat,C %,J 1.5 mm'];
+    for (let i = 0; i < 30_000; i++) lines.push(`H${i},0.2${i % 10},4${i % 10}`);
+    const bytes = new TextEncoder().encode(lines.join('\n') + '\n');
+    expect(bytes.byteLength).toBeGreaterThan(262_144);
+    const m = await previewTableHeaders(bytes, 'csv', { millCode: 'X' });
+    expect(m.columns.map((c) => c.became)).toEqual(['field', 'field', 'distance']);
+    expect(m.layout).not.toBeNull();
+  });
 });
