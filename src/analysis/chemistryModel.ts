@@ -305,7 +305,19 @@ export interface FitRequest {
   holdOutFrom?: string;
   /** These mills' heats are held out of training and scored (does the model carry over to them?). */
   holdOutMills?: string[];
+  /** Per mill, the cast-date window its heats are taken from (mills not named keep the request's window). */
+  millWindows?: Array<{ mill: string; from?: string; to?: string }>;
   createdBy: string | null;
+}
+
+/** Keeps each named mill's curves inside its own cast-date window. */
+export function withinMillWindows<T extends { mill: string; castDate: string }>(curves: readonly T[], windows: FitRequest['millWindows']): T[] {
+  if (!windows?.length) return [...curves];
+  const byMill = new Map(windows.map((w) => [w.mill, w]));
+  return curves.filter((c) => {
+    const w = byMill.get(c.mill);
+    return !w || ((!w.from || c.castDate >= w.from) && (!w.to || c.castDate <= w.to));
+  });
 }
 
 /** The hold-out rule of a request, or undefined when nothing is held out. */
@@ -321,7 +333,7 @@ export type StoredModel = ModelRecord<Omit<FittedModel, 'residualCorrelation' | 
 /** Loads the history, fits, and stores the model as the next version. */
 export async function fitAndStoreModel(db: Db, request: FitRequest): Promise<StoredModel> {
   const source = request.source ?? 'mill_certificate';
-  const curves = await loadSeriesCurves(db, { grade: request.grade, mill: request.mill, from: request.from, to: request.to, source });
+  const curves = withinMillWindows(await loadSeriesCurves(db, { grade: request.grade, mill: request.mill, from: request.from, to: request.to, source }), request.millWindows);
   if (curves.length === 0) throw insufficientData(`no ${request.grade} curves${request.mill ? ` from ${request.mill}` : ''} in the window`);
   const band = await bandOn(db, request.grade, request.to ?? todayIso());
   const holdOut = holdOutRule(request);

@@ -33,4 +33,12 @@ describe('model fit with a held-out set', () => {
     expect(r.status).toBeGreaterThanOrEqual(400);
     expect(JSON.stringify(r.body)).toMatch(/no heat is held out/);
   });
+
+  test('a mill’s own training window', async () => {
+    const to = history.certificates[39].castDate as string;
+    const r = await t.request('POST', '/api/v1/models/fit', { grade: '8620H', millWindows: [{ mill: 'HOLDMILL', to }] });
+    expect(r.status).toBe(201);
+    for (const d of r.body.fits.distances) expect(d.n).toBe(40);
+    expect(r.body.trainedTo).toBe(to);
+  });
 });

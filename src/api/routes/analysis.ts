@@ -257,6 +257,10 @@ export function analysisRoutes(app: OpenAPIHono<AppEnv>, db: Db) {
                   seed: z.number().int().optional(),
                   holdOutFrom: isoDate.optional().openapi({ description: 'Heats cast on or after this date are held out of training and scored.' }),
                   holdOutMills: z.array(z.string().min(1)).min(1).optional().openapi({ description: 'These mills’ heats are held out of training and scored.' }),
+                  millWindows: z
+                    .array(z.object({ mill: z.string().min(1), from: isoDate.optional(), to: isoDate.optional() }))
+                    .optional()
+                    .openapi({ description: 'Per mill, the cast-date window its heats are taken from (inside from/to); mills not named keep the whole window.' }),
                 })
                 .openapi('ModelFitRequest'),
             },
