@@ -73,14 +73,22 @@ describe(`SIGKILL of the service (${label})`, () => {
   test('during an import: all or nothing, and the import runs again', async () => {
     const store = await newStore();
     stores.push(store);
-    const N = 1500;
+    const N = 3000;
     const body = JSON.stringify(variedCertificates(N, { prefix: 'K' }));
     let service = await startServiceProcess({ ...store.env, ENDQUENCH_WEBHOOKS: 'off' });
+    // A dry run of the same document reads, validates and plans it without writing: the import itself does
+    // all that and then writes, so killing it once the dry run's time has passed lands inside the import on
+    // a fast machine and a slow one alike (a fixed sleep did not: on an idle machine the import finished first).
+    const dryStarted = performance.now();
+    const dry = await fetch(`${service.url}/api/v1/imports?format=json&createMissing=true&dryRun=true`, { method: 'POST', headers: { 'content-type': 'application/json' }, body });
+    expect(dry.status).toBe(200);
+    await dry.arrayBuffer();
+    const dryMs = performance.now() - dryStarted;
     let answered = false;
     const sent = fetch(`${service.url}/api/v1/imports?format=json&createMissing=true`, { method: 'POST', headers: { 'content-type': 'application/json' }, body })
       .then(() => (answered = true))
       .catch(() => 'no answer');
-    await sleep(1500); // the import takes several seconds (about 9 s on PGlite on the 2-core test machine)
+    await sleep(dryMs);
     await service.kill('SIGKILL');
     expect(await sent).toBe('no answer');
     expect(answered).toBe(false);
