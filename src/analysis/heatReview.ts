@@ -93,16 +93,19 @@ export async function heatReview(db: Db, heatId: number): Promise<HeatReview> {
   const band = await bandOn(db, heat.grade, heat.castDate);
   if (!band) notes.push(`no band of ${heat.grade} was in force on the cast date ${heat.castDate}: conformance not judged`);
   const current = heat.tests.filter((t) => t.current && t.readings.length);
-  const tests: ReviewedTest[] = heat.tests.map((t) => ({
-    testId: t.id,
-    source: t.source,
-    lotNumber: t.lotNumber,
-    certificateRevision: t.certificateRevision,
-    current: t.current,
-    readings: t.readings,
-    conformance: band && t.readings.length ? testConformance(toTest(t, heat.castDate), band) : null,
-    figures: t.readings.some((r) => !r.censored) ? curveFigures(toTest(t, heat.castDate).readings, (heat.chemistry as Chemistry).C) : null,
-  }));
+  const tests: ReviewedTest[] = heat.tests.map((t) => {
+    const test = toTest(t, heat.castDate);
+    return {
+      testId: t.id,
+      source: t.source,
+      lotNumber: t.lotNumber,
+      certificateRevision: t.certificateRevision,
+      current: t.current,
+      readings: t.readings,
+      conformance: band && t.readings.length ? testConformance(test, band) : null,
+      figures: t.readings.some((r) => !r.censored) ? curveFigures(test.readings, (heat.chemistry as Chemistry).C) : null,
+    };
+  });
   const verdict = band && current.length ? heatConformance(current.map((t) => toTest(t, heat.castDate)), band) : null;
 
   const chemistry = heat.chemistry as Chemistry;

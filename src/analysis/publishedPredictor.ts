@@ -12,7 +12,8 @@
 //    missing with the reason, never clamped or extrapolated.
 // A255's own distance curve (IH divided by dividing factors) is not used: the only dividing factors at
 // hand are a secondary polynomial set that misses published bands (see src/hardenability/astmA255.ts).
-import { BORON_TREATED_FROM, QUENCHED_END_MAX_MM } from '../hardenability/astmA255.ts';
+import { BORON_TREATED_FROM } from '../hardenability/astmA255.ts';
+import { QUENCHED_END_MAX_MM } from '../hardenability/distances.ts';
 import { predictJust1969 } from '../hardenability/just1969.ts';
 import { martensiteBounds, PREDICTION_ABOVE_IH_HRC } from '../hardenability/martensite.ts';
 import type { Chemistry } from '../hardenability/types.ts';

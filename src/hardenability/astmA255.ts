@@ -21,6 +21,7 @@
 
 import { monotoneCubic } from '../stats/monotoneInterpolation.ts';
 import { OutsideMethodError, HardenabilityInputError } from './errors.ts';
+import { QUENCHED_END_MAX_MM } from './distances.ts';
 import { initialHardness } from './martensite.ts';
 import { assertChemistry, flagChemistry, monotoneCurve, requestedDistances } from './predictedCurve.ts';
 import type { ValidityTable } from './predictedCurve.ts';
@@ -214,8 +215,6 @@ export interface A255Curve extends PredictedCurve {
   factors: Record<A255Element, number>;
 }
 
-/** Distances counted as the quenched end: J1 (1.5875 mm) and ISO 642's 1.5 mm are the same position. */
-export const QUENCHED_END_MAX_MM = 1.6;
 
 /**
  * The A255 calculated end-quench curve at the requested distances (mm): IH at the quenched end, IH/DF

@@ -12,7 +12,7 @@
 import { monotoneCubic } from '../stats/monotoneInterpolation.ts';
 import { validateBand } from './bands.ts';
 import type { Band, BandRounding } from './bands.ts';
-import { sortedReadings } from './distances.ts';
+import { QUENCHED_END_MAX_MM, sortedReadings } from './distances.ts';
 import { HardenabilityInputError } from './errors.ts';
 import type { EndQuenchTest, TestSource } from './types.ts';
 
@@ -59,8 +59,6 @@ export interface TestConformance {
   rounding: BandRounding;
 }
 
-/** The quenched-end position of both standards: band points and readings at or below this are the same place. */
-export const QUENCHED_END_POSITION_MAX_MM = 1.6;
 
 /**
  * A value rounded to `places` decimals by ASTM E29 §6.4 (round half to even). Decimal halves are
@@ -116,8 +114,8 @@ export function testConformance(test: EndQuenchTest, band: Band, options: TestCo
   const points = b.points.map((p): PointConformance => {
     let exact = readings.find((r) => Math.abs(r.mm - p.mm) <= tol);
     let position: string | undefined;
-    if (!exact && p.mm <= QUENCHED_END_POSITION_MAX_MM) {
-      exact = readings.find((r) => r.mm <= QUENCHED_END_POSITION_MAX_MM);
+    if (!exact && p.mm <= QUENCHED_END_MAX_MM) {
+      exact = readings.find((r) => r.mm <= QUENCHED_END_MAX_MM);
       if (exact) {
         position = `the reading at ${describeQuenchedEnd(exact.mm)} judged at ${describeQuenchedEnd(p.mm)}: the same quenched-end position (ISO 642 and ASTM A255)`;
       }

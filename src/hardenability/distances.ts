@@ -10,6 +10,12 @@ import type { Distance, DistanceSystem, Reading } from './types.ts';
 
 /** Exact: 25.4 mm / 16. */
 export const MM_PER_SIXTEENTH = 1.5875;
+/**
+ * The quenched-end position of both standards: ISO 642 reads it at 1.5 mm, ASTM A255 at J1 = 1.5875 mm,
+ * 0.09 mm apart, inside either standard's placing tolerance of the first indentation (about ±0.1 mm,
+ * from memory). Distances at or below this are that one position.
+ */
+export const QUENCHED_END_MAX_MM = 1.6;
 /** Length of the standard specimen (ISO 642: 100 mm; ASTM A255: 4 in = 101.6 mm). */
 export const SPECIMEN_LENGTH_MM = 101.6;
 

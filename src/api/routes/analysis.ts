@@ -48,7 +48,7 @@ export function parseDistance(text: string): number {
 const STATS_ERRORS = new Set(['StatsInputError', 'PhaseOneError', 'TooFewObservationsError', 'SingularCovarianceError', 'RegressionInputError', 'RankDeficientError', 'CrossValidationError', 'HardenabilityInputError', 'OutsideMethodError']);
 
 /** Analysis and statistics errors as API errors; anything else propagates (500, logged). */
-async function answer<T>(work: () => Promise<T>): Promise<T> {
+export async function answer<T>(work: () => Promise<T>): Promise<T> {
   try {
     return await work();
   } catch (error) {

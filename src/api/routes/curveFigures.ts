@@ -3,9 +3,9 @@
 // (src/analysis/curveFigureSeries.ts). Routes only parse, call src/analysis, and shape errors.
 import { createRoute, z, type OpenAPIHono } from '@hono/zod-openapi';
 import type { Db } from '../../db/connection.ts';
-import { AnalysisError } from '../../analysis/errors.ts';
 import { curveFigureSeries } from '../../analysis/curveFigureSeries.ts';
-import { ApiError, errorBodySchema } from '../errors.ts';
+import { errorBodySchema } from '../errors.ts';
+import { answer } from './analysis.ts';
 import type { AppEnv } from '../context.ts';
 
 const json = (schema: z.ZodType, description: string) => ({ description, content: { 'application/json': { schema } } });
@@ -36,13 +36,8 @@ export function curveFigureRoutes(app: OpenAPIHono<AppEnv>, db: Db) {
     }),
     async (c) => {
       const q = c.req.valid('query');
-      try {
-        const series = await curveFigureSeries(db, q);
-        return c.json({ ...series, caution: FIGURE_CAUTION }, 200);
-      } catch (error) {
-        if (error instanceof AnalysisError) throw new ApiError(error.code === 'not_found' ? 404 : error.code === 'invalid_input' ? 400 : 422, error.code, error.message, error.details);
-        throw error;
-      }
+      const series = await answer(() => curveFigureSeries(db, q));
+      return c.json({ ...series, caution: FIGURE_CAUTION }, 200);
     },
   );
 }
